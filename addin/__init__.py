@@ -1,0 +1,1 @@
+"""groundstep.addin: spreadsheets and the command line, adapted to groundstep.core."""

@@ -1,0 +1,37 @@
+"""groundstep.core: oscillator response to ground acceleration.
+
+No spreadsheet library is imported here; ``groundstep.addin`` adapts
+spreadsheets and the command line to this API. SI units throughout
+(m, s, m/s²).
+"""
+
+from importlib.metadata import PackageNotFoundError, version
+
+from ._methods import METHODS, Method
+from ._units import ACCELERATION_UNITS, LENGTH_UNITS, STANDARD_GRAVITY
+from .linear import DEFAULT_STEP_RATIO, SubstepWarning, elastic_spectrum, linear_response, period_grid
+from .record import Record, RecordTextWarning
+from .results import ElasticSpectrum, LinearResponse
+
+try:
+    __version__ = version("groundstep")
+except PackageNotFoundError:  # running from a source tree that was not installed
+    __version__ = "0+unknown"
+
+__all__ = [
+    "ACCELERATION_UNITS",
+    "DEFAULT_STEP_RATIO",
+    "ElasticSpectrum",
+    "LENGTH_UNITS",
+    "LinearResponse",
+    "METHODS",
+    "Method",
+    "Record",
+    "RecordTextWarning",
+    "STANDARD_GRAVITY",
+    "SubstepWarning",
+    "__version__",
+    "elastic_spectrum",
+    "linear_response",
+    "period_grid",
+]

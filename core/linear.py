@@ -1,0 +1,305 @@
+"""Linear oscillators: response histories and elastic response spectra."""
+
+from __future__ import annotations
+
+import math
+import warnings
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+from . import _coefficients, _kernels, _validate
+from ._methods import Method, resolve_method, substep_counts
+from .record import Record
+from .results import ElasticSpectrum, LinearResponse
+
+__all__ = ["DEFAULT_STEP_RATIO", "SubstepWarning", "elastic_spectrum", "linear_response", "period_grid"]
+
+#: Default largest Δt/T for Newmark stepping: a tenth of the period is
+#: common practice for accuracy of peak response.
+DEFAULT_STEP_RATIO = 0.1
+
+
+class SubstepWarning(UserWarning):
+    """The record step was sub-divided to keep Δt/T within the limit."""
+
+
+def linear_response(
+    record: Record,
+    period: float,
+    damping: float = 0.05,
+    method: str | tuple[float, float] = "average",
+    *,
+    max_step_ratio: float | None = DEFAULT_STEP_RATIO,
+    initial_displacement: float = 0.0,
+    initial_velocity: float = 0.0,
+) -> LinearResponse:
+    """Response history of one linear single-degree-of-freedom oscillator.
+
+    Parameters
+    ----------
+    record : Record
+        Ground acceleration ü_g.
+    period : float
+        Natural period T [s], >= 0; 0 is a rigid oscillator.
+    damping : float, default 0.05
+        Ratio of critical damping ζ, in [0, 1).
+    method : {"average", "linear", "exact"} or (beta, gamma), default "average"
+        Newmark average acceleration (β = 1/4, γ = 1/2), linear acceleration
+        (β = 1/6, γ = 1/2), any other Newmark pair, or the exact solution for
+        excitation linear between samples.
+    max_step_ratio : float or None, default 0.1
+        Largest Δt/T for Newmark methods; a longer record step is split into
+        equal sub-steps with the excitation interpolated linearly. ``None``
+        turns the accuracy limit off; the stability limit of a conditionally
+        stable method (Δt/T <= √3/π for linear acceleration) always holds.
+    initial_displacement : float, default 0
+        u(0) [m].
+    initial_velocity : float, default 0
+        u̇(0) [m/s]. The initial acceleration follows from equilibrium at the
+        first sample.
+
+    Returns
+    -------
+    LinearResponse
+
+    Raises
+    ------
+    TypeError
+        `record` is not a Record; a number argument is not a number.
+    ValueError
+        Negative period, damping outside [0, 1), unknown method, or a
+        non-positive `max_step_ratio`.
+
+    Warns
+    -----
+    SubstepWarning
+        When the record step was sub-divided (the count is in ``.substeps``).
+
+    Notes
+    -----
+    Equation of motion per unit mass: ü + 2ζωu̇ + ω²u = -ü_g, ω = 2π/T.
+    Peaks are taken over the record's sample times.
+
+    References
+    ----------
+    Newmark, N. M. (1959). A method of computation for structural dynamics.
+    Journal of the Engineering Mechanics Division, ASCE, 85(EM3), 67-94.
+
+    Nigam, N. C., and Jennings, P. C. (1969). Calculation of response spectra
+    from strong-motion earthquake records. Bulletin of the Seismological
+    Society of America, 59(2), 909-922.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> from groundstep.core import Record, linear_response
+    >>> t = np.arange(0, 2, 0.01)
+    >>> rec = Record(0.2 * np.sin(2 * np.pi * t), dt=0.01, unit="g")
+    >>> res = linear_response(rec, period=0.5, damping=0.05)
+    >>> bool(res.peak_displacement > 0)
+    True
+    """
+    record = _check_record(record)
+    period_value = _validate.periods(period, "period")
+    if period_value.size != 1:
+        raise ValueError(f"`period` must be one number, got {period_value.size}; use elastic_spectrum for many")
+    period = float(period_value[0])
+    damping = float(_validate.dampings(damping, "damping")[0])
+    resolved = resolve_method(method)
+    ratio = _check_ratio(max_step_ratio)
+    u0 = _validate.as_float(initial_displacement, "initial_displacement")
+    v0 = _validate.as_float(initial_velocity, "initial_velocity")
+
+    time = record.time
+    load = -record.accel
+    if period == 0.0:
+        if u0 != 0.0 or v0 != 0.0:
+            raise ValueError("a rigid oscillator (`period` 0) cannot start with a displacement or velocity")
+        zeros = np.zeros(record.n)
+        total = record.accel.copy()
+        index = int(np.argmax(np.abs(total)))
+        return LinearResponse(
+            period, damping, resolved.name, resolved.beta, resolved.gamma, record.dt, 1,
+            time, zeros, zeros.copy(), total,
+            0.0, 0.0, float(abs(total[index])), 0.0, 0.0, float(time[index]),
+            0.0, float(abs(total[index])),
+        )  # fmt: skip
+
+    coef, substeps = _map_coefficients(record.dt, np.array([period]), np.array([damping]), resolved, ratio)
+    if substeps[0] > 1:
+        warnings.warn(
+            f"period {period:g} s with record step {record.dt:g} s: each step split into "
+            f"{substeps[0]} sub-steps (Δt/T <= {_limit_text(resolved, ratio)})",
+            SubstepWarning,
+            stacklevel=2,
+        )
+    displacement = np.empty(record.n)
+    velocity = np.empty(record.n)
+    _kernels.history(load, coef, u0, v0, displacement, velocity)
+    total = -(coef[8, 0] * velocity + coef[9, 0] * displacement)
+    peaks = [np.abs(displacement), np.abs(velocity), np.abs(total)]
+    where = [int(np.argmax(values)) for values in peaks]
+    sd, sv, sa = (float(values[index]) for values, index in zip(peaks, where))
+    omega = 2.0 * math.pi / period
+    return LinearResponse(
+        period, damping, resolved.name, resolved.beta, resolved.gamma, record.dt, int(substeps[0]),
+        time, displacement, velocity, total,
+        sd, sv, sa, float(time[where[0]]), float(time[where[1]]), float(time[where[2]]),
+        omega * sd, omega * omega * sd,
+    )  # fmt: skip
+
+
+def elastic_spectrum(
+    record: Record,
+    periods: ArrayLike,
+    dampings: ArrayLike = 0.05,
+    method: str | tuple[float, float] = "average",
+    *,
+    max_step_ratio: float | None = DEFAULT_STEP_RATIO,
+) -> ElasticSpectrum:
+    """Elastic response spectra of a record for many periods and dampings.
+
+    Parameters
+    ----------
+    record : Record
+        Ground acceleration ü_g.
+    periods : array_like (n_periods,)
+        Periods T [s], >= 0 (0 is a rigid oscillator); see `period_grid`.
+    dampings : float or array_like (n_dampings,), default 0.05
+        Ratios of critical damping, each in [0, 1).
+    method : {"average", "linear", "exact"} or (beta, gamma), default "average"
+        As in `linear_response`.
+    max_step_ratio : float or None, default 0.1
+        As in `linear_response`.
+
+    Returns
+    -------
+    ElasticSpectrum
+        ``sd``, ``sv``, ``sa``, ``psv``, ``psa`` of shape
+        (n_dampings, n_periods) in SI units, oscillators at rest at t = 0.
+
+    Raises
+    ------
+    TypeError, ValueError
+        As in `linear_response`, naming the index of a bad period or damping.
+
+    Warns
+    -----
+    SubstepWarning
+        When any oscillator needed sub-steps (counts in ``.substeps``).
+
+    Notes
+    -----
+    PSV = ω·SD, PSA = ω²·SD. All oscillators run in one compiled pass over
+    the record, interleaved so the loop over oscillators vectorises.
+
+    References
+    ----------
+    See `linear_response`.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> from groundstep.core import Record, elastic_spectrum, period_grid
+    >>> rec = Record(0.1 * np.sin(np.arange(500) * 0.05), dt=0.01)
+    >>> spec = elastic_spectrum(rec, period_grid(0.05, 4.0, 50), [0.02, 0.05])
+    >>> spec.psa.shape
+    (2, 50)
+    """
+    record = _check_record(record)
+    period_values = _validate.periods(periods, "periods")
+    damping_values = _validate.dampings(dampings, "dampings")
+    resolved = resolve_method(method)
+    ratio = _check_ratio(max_step_ratio)
+
+    grid_z, grid_t = np.meshgrid(damping_values, period_values, indexing="ij")
+    flat_t, flat_z = grid_t.ravel(), grid_z.ravel()
+    moving = flat_t > 0.0
+    peaks = np.zeros((3, flat_t.size))
+    substeps = np.ones(flat_t.size, dtype=np.int64)
+    if moving.any():
+        coef, used = _map_coefficients(record.dt, flat_t[moving], flat_z[moving], resolved, ratio)
+        substeps[moving] = used
+        found = np.empty((3, coef.shape[1]))
+        zeros = np.zeros(coef.shape[1])
+        _kernels.peaks(-record.accel, coef, zeros, zeros, found)
+        peaks[:, moving] = found
+    peaks[2, ~moving] = record.pga
+    if substeps.max() > 1:
+        split = int(np.count_nonzero(substeps > 1))
+        warnings.warn(
+            f"record step {record.dt:g} s: {split} of {substeps.size} oscillators sub-stepped, "
+            f"up to {substeps.max()} sub-steps (Δt/T <= {_limit_text(resolved, ratio)})",
+            SubstepWarning,
+            stacklevel=2,
+        )
+    shape = grid_t.shape
+    omega = np.zeros(flat_t.size)
+    omega[moving] = 2.0 * np.pi / flat_t[moving]
+    sd, sv, sa = (row.reshape(shape) for row in peaks)
+    psv = (omega * peaks[0]).reshape(shape)
+    psa = np.where(moving, omega * omega * peaks[0], peaks[2]).reshape(shape)
+    return ElasticSpectrum(
+        period_values, damping_values, sd, sv, sa, psv, psa, substeps.reshape(shape),
+        resolved.name, resolved.beta, resolved.gamma, record.dt,
+        math.nan if ratio is None else ratio,
+    )  # fmt: skip
+
+
+def period_grid(shortest: float = 0.01, longest: float = 10.0, count: int = 100) -> NDArray[np.float64]:
+    """Log-spaced periods [s] from `shortest` to `longest`, both included.
+
+    Parameters
+    ----------
+    shortest, longest : float
+        First and last period [s], 0 < shortest < longest.
+    count : int, default 100
+        Number of periods, >= 2.
+
+    Examples
+    --------
+    >>> period_grid(0.1, 10.0, 3)
+    array([ 0.1,  1. , 10. ])
+    """
+    low = _validate.positive(shortest, "shortest")
+    high = _validate.positive(longest, "longest")
+    if not high > low:
+        raise ValueError(f"`longest` must exceed `shortest`, got {low!r} and {high!r}")
+    if isinstance(count, bool) or not isinstance(count, (int, np.integer)) or count < 2:
+        raise ValueError(f"`count` must be an integer >= 2, got {count!r}")
+    grid = np.geomspace(low, high, int(count))
+    grid[0], grid[-1] = low, high
+    return grid
+
+
+def _check_record(record: object) -> Record:
+    if not isinstance(record, Record):
+        raise TypeError(
+            f"`record` must be a groundstep Record, got {type(record).__name__}; "
+            "build one with Record(accel, dt, unit) or Record.from_text(path, dt)"
+        )
+    return record
+
+
+def _check_ratio(max_step_ratio: float | None) -> float | None:
+    if max_step_ratio is None:
+        return None
+    return _validate.positive(max_step_ratio, "max_step_ratio")
+
+
+def _limit_text(method: Method, ratio: float | None) -> str:
+    limit = min(math.inf if ratio is None else ratio, method.stability_limit)
+    return f"{limit:.4g}"
+
+
+def _map_coefficients(
+    dt: float, periods: NDArray[np.float64], dampings: NDArray[np.float64], method: Method, ratio: float | None
+) -> tuple[NDArray[np.float64], NDArray[np.int64]]:
+    """Per-record-step map coefficients (10, n) and the sub-steps behind them."""
+    omega = 2.0 * np.pi / periods
+    if not method.is_newmark:
+        return _coefficients.exact(omega, dampings, dt), np.ones(periods.size, dtype=np.int64)
+    substeps = substep_counts(dt, periods, method, ratio)
+    one_step = _coefficients.newmark(omega, dampings, dt / substeps, method.beta, method.gamma)
+    return _kernels.compose(one_step, substeps), substeps

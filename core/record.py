@@ -1,0 +1,304 @@
+"""Ground acceleration records: a frozen value object and a text reader."""
+
+from __future__ import annotations
+
+import hashlib
+import math
+import os
+import re
+import warnings
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+from . import _validate
+from ._units import ACCELERATION_UNITS, normalise_unit
+
+__all__ = ["Record", "RecordTextWarning"]
+
+#: Largest deviation of a time value from uniform spacing, as a fraction of
+#: the step, still read as uniform. Printed time columns carry rounding of a
+#: few digits; 1 % of a step is common practice for accepting them.
+TIME_SPACING_TOLERANCE = 0.01
+
+_SEPARATORS = re.compile(r"[,;\s]+")
+
+
+class RecordTextWarning(UserWarning):
+    """Lines of a record file were skipped (non-numeric header lines)."""
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class Record:
+    """A uniformly sampled ground acceleration history.
+
+    Parameters
+    ----------
+    accel : array_like, shape (n,)
+        Acceleration samples in `unit`; at least two, all finite.
+    dt : float
+        Time step [s], > 0.
+    unit : str, default ``"g"``
+        Unit of `accel`: ``"g"`` (9.80665 m/s²), ``"m/s2"``, ``"cm/s2"``
+        (alias ``"gal"``), ``"mm/s2"``, ``"in/s2"`` or ``"ft/s2"``.
+    name : str, optional
+        Label for reports.
+
+    Attributes
+    ----------
+    accel : ndarray, shape (n,)
+        Acceleration [m/s²] (read-only).
+    dt : float
+        Time step [s].
+    unit : str
+        The unit the samples were given in (normalised spelling).
+    n, time, duration
+        Sample count, sample times [s] starting at 0, and (n - 1)·dt [s].
+
+    Examples
+    --------
+    >>> rec = Record([0.0, 0.1, -0.05, 0.0], dt=0.01, unit="g")
+    >>> round(rec.pga, 5)
+    0.98066
+    """
+
+    accel: NDArray[np.float64]
+    dt: float
+    unit: str = "g"
+    name: str = ""
+    header: tuple[str, ...] = field(default=(), repr=False)
+
+    def __post_init__(self) -> None:
+        unit = normalise_unit(self.unit, ACCELERATION_UNITS)
+        samples = _validate.as_vector(self.accel, "accel", min_size=2)
+        dt = _validate.positive(self.dt, "dt")
+        si = samples * ACCELERATION_UNITS[unit]
+        si.flags.writeable = False
+        object.__setattr__(self, "accel", si)
+        object.__setattr__(self, "dt", dt)
+        object.__setattr__(self, "unit", unit)
+        object.__setattr__(self, "name", str(self.name))
+        object.__setattr__(self, "header", tuple(str(line) for line in self.header))
+
+    def __repr__(self) -> str:
+        label = f"{self.name!r}, " if self.name else ""
+        return f"Record({label}n={self.n}, dt={self.dt!r}, unit={self.unit!r}, pga={self.pga:.4g} m/s²)"
+
+    @property
+    def n(self) -> int:
+        """Number of samples."""
+        return int(self.accel.shape[0])
+
+    @property
+    def time(self) -> NDArray[np.float64]:
+        """Sample times [s], starting at 0."""
+        return np.arange(self.n, dtype=np.float64) * self.dt
+
+    @property
+    def duration(self) -> float:
+        """(n - 1)·dt [s]."""
+        return (self.n - 1) * self.dt
+
+    @property
+    def pga(self) -> float:
+        """Peak ground acceleration max|a| [m/s²]."""
+        return float(np.max(np.abs(self.accel)))
+
+    def accel_in(self, unit: str) -> NDArray[np.float64]:
+        """Acceleration samples converted to `unit` (any name of the unit table)."""
+        return self.accel / ACCELERATION_UNITS[normalise_unit(unit, ACCELERATION_UNITS)]
+
+    def ground_velocity(self) -> NDArray[np.float64]:
+        """Ground velocity [m/s] for acceleration linear between samples, from rest.
+
+        Notes
+        -----
+        v[i+1] = v[i] + dt·(a[i] + a[i+1])/2 (trapezoidal rule, exact for
+        piecewise-linear acceleration).
+        """
+        a = self.accel
+        velocity = np.empty_like(a)
+        velocity[0] = 0.0
+        np.cumsum(0.5 * self.dt * (a[1:] + a[:-1]), out=velocity[1:])
+        return velocity
+
+    def ground_displacement(self) -> NDArray[np.float64]:
+        """Ground displacement [m] for acceleration linear between samples, from rest.
+
+        Notes
+        -----
+        d[i+1] = d[i] + dt·v[i] + dt²·(a[i]/3 + a[i+1]/6), the exact integral of
+        a piecewise-linear acceleration.
+        """
+        a = self.accel
+        v = self.ground_velocity()
+        dt = self.dt
+        displacement = np.empty_like(a)
+        displacement[0] = 0.0
+        np.cumsum(dt * v[:-1] + dt * dt * (a[:-1] / 3.0 + a[1:] / 6.0), out=displacement[1:])
+        return displacement
+
+    def sha256(self) -> str:
+        """SHA-256 hex digest of the samples as given (in `unit`) and of dt.
+
+        The digest covers the float64 little-endian bytes of the samples in
+        the record's own unit, then the unit name and the repr of dt, so the
+        same record typed into a workbook in the same unit gives the same
+        digest.
+        """
+        digest = hashlib.sha256()
+        digest.update(np.ascontiguousarray(self.accel_in(self.unit), dtype="<f8").tobytes())
+        digest.update(f"|{self.unit}|{self.dt!r}".encode())
+        return digest.hexdigest()
+
+    @classmethod
+    def from_text(
+        cls,
+        source: str | os.PathLike[str],
+        dt: float | None = None,
+        unit: str = "g",
+        *,
+        time_column: bool | None = None,
+        name: str | None = None,
+    ) -> "Record":
+        """Read a record from plain numeric text or CSV.
+
+        Parameters
+        ----------
+        source : str or path-like
+            A path to a file, or the text itself (a string holding a line
+            break is read as text).
+        dt : float, optional
+            Time step [s]. Required unless the text has a time column.
+        unit : str, default ``"g"``
+            Unit of the acceleration values.
+        time_column : bool, optional
+            ``True``: every data line is ``time, acceleration``. ``False``:
+            every number is an acceleration sample, read row-wise (several
+            per line allowed). ``None`` (default): a time column is assumed
+            when every data line holds exactly two numbers, the first column
+            strictly increases, and `dt` is not given.
+        name : str, optional
+            Label; defaults to the file name.
+
+        Returns
+        -------
+        Record
+
+        Raises
+        ------
+        ValueError
+            No numbers found; a non-numeric line after the data began (its
+            line number is given); a time column that is not uniformly spaced
+            (first offending line); a `dt` that disagrees with the time column.
+
+        Warns
+        -----
+        RecordTextWarning
+            When leading non-numeric (header) lines were skipped; they are
+            kept in ``Record.header``.
+
+        Notes
+        -----
+        Separators are commas, semicolons, tabs or spaces. A time column is
+        accepted as uniform when every time lies within
+        ``TIME_SPACING_TOLERANCE``·dt of t0 + i·dt.
+        """
+        text, label = _read_source(source)
+        header, rows, line_numbers = _parse_lines(text, label)
+        widths = {len(row) for row in rows}
+        if time_column is None:
+            time_column = (
+                dt is None
+                and widths == {2}
+                and len(rows) >= 2
+                and all(rows[i + 1][0] > rows[i][0] for i in range(len(rows) - 1))
+            )
+        if time_column:
+            if widths != {2}:
+                bad = next(i for i, row in enumerate(rows) if len(row) != 2)
+                raise ValueError(
+                    f"{label}: line {line_numbers[bad]} holds {len(rows[bad])} numbers; "
+                    "a time column needs exactly 'time, acceleration' on every line"
+                )
+            table = np.array(rows, dtype=np.float64)
+            step = _uniform_step(table[:, 0], line_numbers, label)
+            if dt is not None and not math.isclose(float(dt), step, rel_tol=1e-6):
+                raise ValueError(
+                    f"{label}: `dt` {dt!r} disagrees with the time column, which is spaced {step!r} s"
+                )
+            samples = table[:, 1]
+            dt = step
+        else:
+            if dt is None:
+                raise ValueError(
+                    f"{label}: `dt` is required when the text has no time column "
+                    "(pass dt=..., or time_column=True for 'time, acceleration' lines)"
+                )
+            samples = np.array([value for row in rows for value in row], dtype=np.float64)
+        if header:
+            warnings.warn(
+                f"{label}: skipped {len(header)} non-numeric header line(s): {header[0]!r}"
+                + (" ..." if len(header) > 1 else ""),
+                RecordTextWarning,
+                stacklevel=2,
+            )
+        return cls(samples, dt, unit, name=label if name is None else name, header=tuple(header))
+
+
+def _read_source(source: str | os.PathLike[str]) -> tuple[str, str]:
+    if isinstance(source, str) and ("\n" in source or "\r" in source):
+        return source, "text"
+    path = Path(source)
+    if not path.is_file():
+        raise ValueError(f"`source` {str(source)!r} is not a file (pass a path, or text holding line breaks)")
+    return path.read_text(encoding="utf-8-sig", errors="replace"), path.name
+
+
+def _parse_lines(text: str, label: str) -> tuple[list[str], list[list[float]], list[int]]:
+    header: list[str] = []
+    rows: list[list[float]] = []
+    line_numbers: list[int] = []
+    for number, line in enumerate(text.splitlines(), start=1):
+        stripped = line.strip()
+        if not stripped:
+            continue
+        fields = [item for item in _SEPARATORS.split(stripped) if item]
+        try:
+            values = [float(item) for item in fields]
+        except ValueError:
+            if rows:
+                raise ValueError(
+                    f"{label}: line {number} is not numeric ({stripped[:60]!r}) "
+                    "but data began earlier; only leading header lines are skipped"
+                ) from None
+            header.append(stripped)
+            continue
+        for item, value in zip(fields, values):
+            if not math.isfinite(value):
+                raise ValueError(f"{label}: line {number} holds a non-finite value {item!r}")
+        rows.append(values)
+        line_numbers.append(number)
+    if not rows:
+        raise ValueError(f"{label}: no numeric lines found")
+    return header, rows, line_numbers
+
+
+def _uniform_step(times: NDArray[np.float64], line_numbers: list[int], label: str) -> float:
+    if times.size < 2:
+        raise ValueError(f"{label}: a time column needs at least two lines")
+    steps = np.diff(times)
+    typical = float(np.median(steps))
+    if not typical > 0.0:
+        raise ValueError(f"{label}: the time column does not increase")
+    off = np.flatnonzero(np.abs(steps - typical) > TIME_SPACING_TOLERANCE * typical)
+    if off.size:
+        index = int(off[0]) + 1
+        raise ValueError(
+            f"{label}: the time column is not uniformly spaced: line {line_numbers[index]} "
+            f"has t = {times[index]!r}, {steps[index - 1]:.6g} s after the line before; "
+            f"the usual step is {typical:.6g} s"
+        )
+    return float((times[-1] - times[0]) / (times.size - 1))
