@@ -1,0 +1,55 @@
+"""Compile every numba kernel once so later calls load from the on-disk cache.
+
+numba compiles a kernel on its first call (seconds each) and, with
+``cache=True``, stores the machine code beside the module. ``warm_up`` makes
+those first calls on a tiny record, so the cost is paid once per install
+(``groundstep warm``), not once per workbook.
+"""
+
+from __future__ import annotations
+
+import importlib
+import time
+import warnings
+
+import numpy as np
+
+__all__ = ["warm_up"]
+
+
+def warm_up() -> dict[str, float]:
+    """Call each public computation once on a tiny record; return seconds per step.
+
+    Returns
+    -------
+    dict
+        Wall time [s] of each warm-up call, in call order, plus ``"total"``.
+        A call that loads from a warm cache takes milliseconds; a cold one
+        takes seconds.
+    """
+    from .linear import elastic_spectrum, linear_response
+    from .record import Record
+
+    record = Record(np.sin(np.linspace(0.0, 6.0, 64)), dt=0.02, unit="m/s2")
+    calls = {
+        "elastic_spectrum (Newmark)": lambda: elastic_spectrum(record, [0.0, 0.01, 0.5], [0.05]),
+        "elastic_spectrum (exact)": lambda: elastic_spectrum(record, [0.5], [0.05], method="exact"),
+        "linear_response": lambda: linear_response(record, 0.01),
+    }
+    try:  # the yielding engine, when installed
+        inelastic = importlib.import_module(f"{__package__}.inelastic")
+    except ImportError:
+        inelastic = None
+    if inelastic is not None:
+        calls["inelastic_response"] = lambda: inelastic.inelastic_response(record, 0.5, reduction_factor=2.0)
+        calls["ductility_spectrum"] = lambda: inelastic.ductility_spectrum(record, [0.3, 0.6], [1.0, 2.0])
+    timings: dict[str, float] = {}
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        start = time.perf_counter()
+        for label, call in calls.items():
+            began = time.perf_counter()
+            call()
+            timings[label] = time.perf_counter() - began
+        timings["total"] = time.perf_counter() - start
+    return timings
