@@ -52,7 +52,7 @@ def as_vector(values: ArrayLike, argument: str, *, min_size: int = 1) -> NDArray
     if bad.size:
         index = int(bad[0])
         raise ValueError(
-            f"`{argument}` must be finite; index {index} holds {array[index]!r}"
+            f"`{argument}` must be finite; index {index} holds {float(array[index])!r}"
             + (f" ({bad.size} non-finite values in all)" if bad.size > 1 else "")
         )
     return array
@@ -64,7 +64,7 @@ def periods(values: ArrayLike, argument: str = "periods") -> NDArray[np.float64]
     negative = np.flatnonzero(array < 0.0)
     if negative.size:
         index = int(negative[0])
-        raise ValueError(f"`{argument}` must be >= 0 s; index {index} holds {array[index]!r}")
+        raise ValueError(f"`{argument}` must be >= 0 s; index {index} holds {float(array[index])!r}")
     return array
 
 
@@ -73,7 +73,7 @@ def dampings(values: ArrayLike, argument: str = "dampings") -> NDArray[np.float6
     array = as_vector(values, argument)
     for index, ratio in enumerate(array):
         if ratio < 0.0:
-            raise ValueError(f"`{argument}` must be >= 0; index {index} holds {ratio!r}")
+            raise ValueError(f"`{argument}` must be >= 0; index {index} holds {float(ratio)!r}")
         if ratio >= 1.0:
             hint = (
                 f"; {ratio:g} looks like a percentage: enter {ratio / 100:g}"
@@ -82,6 +82,6 @@ def dampings(values: ArrayLike, argument: str = "dampings") -> NDArray[np.float6
             )
             raise ValueError(
                 f"`{argument}` must be a ratio of critical damping in [0, 1)"
-                f"; index {index} holds {ratio!r}{hint}"
+                f"; index {index} holds {float(ratio)!r}{hint}"
             )
     return array

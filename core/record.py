@@ -141,12 +141,12 @@ class Record:
         return displacement
 
     def sha256(self) -> str:
-        """SHA-256 hex digest of the samples as given (in `unit`) and of dt.
+        """SHA-256 hex digest of the samples (in the record's own unit) and of dt.
 
-        The digest covers the float64 little-endian bytes of the samples in
-        the record's own unit, then the unit name and the repr of dt, so the
-        same record typed into a workbook in the same unit gives the same
-        digest.
+        The digest covers the float64 little-endian bytes of
+        ``accel_in(unit)``, then the unit name and the repr of dt, so the
+        same values read back from a workbook in the same unit and passed to
+        ``Record`` give the same digest.
         """
         digest = hashlib.sha256()
         digest.update(np.ascontiguousarray(self.accel_in(self.unit), dtype="<f8").tobytes())
@@ -298,7 +298,7 @@ def _uniform_step(times: NDArray[np.float64], line_numbers: list[int], label: st
         index = int(off[0]) + 1
         raise ValueError(
             f"{label}: the time column is not uniformly spaced: line {line_numbers[index]} "
-            f"has t = {times[index]!r}, {steps[index - 1]:.6g} s after the line before; "
+            f"has t = {float(times[index])!r}, {steps[index - 1]:.6g} s after the line before; "
             f"the usual step is {typical:.6g} s"
         )
     return float((times[-1] - times[0]) / (times.size - 1))

@@ -1,0 +1,334 @@
+"""Tests of groundstep.core.linear against closed forms, scipy and published relations."""
+
+from __future__ import annotations
+
+import math
+import warnings
+
+import numpy as np
+import pytest
+from numpy.testing import assert_allclose
+from scipy import signal
+
+from groundstep.core import Record, SubstepWarning, elastic_spectrum, linear_response, period_grid
+
+
+def _random_record(seed: int, n: int = 1500, dt: float = 0.01) -> Record:
+    """Invented record: seeded Gaussian noise smoothed by a 5-point moving average [m/s²]."""
+    rng = np.random.default_rng(seed)
+    noise = np.convolve(rng.normal(size=n + 4), np.ones(5) / 5.0, mode="valid")
+    return Record(noise, dt=dt, unit="m/s2")
+
+
+def _quiet(function, *args, **kwargs):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", SubstepWarning)
+        return function(*args, **kwargs)
+
+
+# --- free vibration ---------------------------------------------------------
+
+
+@pytest.mark.parametrize("damping", [0.0, 0.05, 0.3])
+def test_free_vibration_matches_closed_form(damping):
+    """Damped free vibration from u0, v0 equals the closed-form solution (exact method)."""
+    period, u0, v0 = 0.8, 0.02, -0.15
+    record = Record(np.zeros(801), dt=0.005, unit="m/s2")
+    result = linear_response(record, period, damping, "exact", initial_displacement=u0, initial_velocity=v0)
+    # closed form of u'' + 2ζωu' + ω²u = 0 (any structural dynamics text; derived by hand)
+    w = 2 * math.pi / period
+    wd = w * math.sqrt(1 - damping**2)
+    t = record.time
+    expected = np.exp(-damping * w * t) * (u0 * np.cos(wd * t) + (v0 + damping * w * u0) / wd * np.sin(wd * t))
+    # exact stepping: only round-off, which grows ~linearly over 800 steps
+    assert_allclose(result.displacement, expected, rtol=0, atol=1e-13)
+
+
+def test_free_vibration_average_acceleration_close_to_closed_form():
+    """Average acceleration with Δt/T = 1/160 tracks free vibration within its period error."""
+    period, damping, u0 = 0.8, 0.05, 0.02
+    record = Record(np.zeros(481), dt=0.005, unit="m/s2")
+    result = linear_response(record, period, damping, "average", initial_displacement=u0)
+    w = 2 * math.pi / period
+    wd = w * math.sqrt(1 - damping**2)
+    t = record.time
+    expected = np.exp(-damping * w * t) * u0 * (np.cos(wd * t) + damping * w / wd * np.sin(wd * t))
+    # period elongation ≈ (ωΔt)²/12 = 1.3e-4 relative; after 3 cycles the phase
+    # error is 2π·3·1.3e-4 ≈ 2.4e-3 rad, so the error stays below 3e-3·u0
+    assert_allclose(result.displacement, expected, rtol=0, atol=3e-3 * u0)
+
+
+def test_period_elongation_follows_published_relation():
+    """Undamped average acceleration rotates by ω̄Δt per step with tan(ω̄Δt/2) = ωΔt/2."""
+    period, dt = 1.0, 0.2  # Δt/T = 0.2, large enough to show elongation
+    record = Record(np.zeros(200), dt=dt, unit="m/s2")
+    u = linear_response(record, period, 0.0, "average", max_step_ratio=None, initial_displacement=1.0).displacement
+    # a discrete rotation obeys u[n+1] + u[n-1] = 2 cos(θ) u[n]; least squares over all n
+    cos_theta = np.dot(u[2:] + u[:-2], u[1:-1]) / (2 * np.dot(u[1:-1], u[1:-1]))
+    omega = 2 * math.pi / period
+    # Hughes (1987), The Finite Element Method, §9.3: trapezoidal rule period relation
+    expected = 2 * math.atan(omega * dt / 2)
+    assert math.acos(cos_theta) == pytest.approx(expected, rel=1e-12)
+    # amplitude is preserved (average acceleration has no numerical damping)
+    assert np.max(np.abs(u)) == pytest.approx(1.0, rel=1e-12)
+
+
+# --- harmonic excitation ----------------------------------------------------
+
+
+@pytest.mark.parametrize("method", ["exact", "average"])
+@pytest.mark.parametrize("ratio", [0.5, 1.0, 2.0])
+def test_harmonic_steady_state_amplitude(method, ratio):
+    """Steady-state amplitude equals u_st·R_d, R_d = 1/sqrt((1 - r²)² + (2ζr)²) (closed form)."""
+    period, damping, dt = 0.5, 0.1, 0.0025
+    omega = 2 * math.pi / period
+    forcing = ratio * omega
+    t = np.arange(0.0, 40.0, dt)
+    amplitude = 1.0  # ground acceleration amplitude [m/s²]
+    record = Record(amplitude * np.sin(forcing * t), dt=dt, unit="m/s2")
+    u = linear_response(record, period, damping, method).displacement
+    steady = u[t > 30.0]  # transient decays as exp(-ζωt) < 1e-16 after 30 s
+    r_d = 1.0 / math.sqrt((1 - ratio**2) ** 2 + (2 * damping * ratio) ** 2)
+    expected = amplitude / omega**2 * r_d
+    # tolerance: sampling of the crest (Ωdt)²/8 <= 5e-4 and, for average acceleration,
+    # period elongation (ωΔt)²/12 ≈ 3e-4 shifting r; 2e-3 covers both
+    assert np.max(np.abs(steady)) == pytest.approx(expected, rel=2e-3)
+
+
+# --- exact method against scipy ---------------------------------------------
+
+
+@pytest.mark.parametrize("seed", [1, 2, 3])
+@pytest.mark.parametrize("period", [0.03, 0.05, 0.1, 0.7, 4.0, 60.0])
+@pytest.mark.parametrize("damping", [0.0, 0.02, 0.2, 0.9])
+def test_exact_matches_scipy_lsim(seed, period, damping):
+    """The exact method equals scipy.signal.lsim with linear interpolation of the input."""
+    record = _random_record(seed, n=600)
+    omega = 2 * math.pi / period
+    system = signal.StateSpace(
+        np.array([[0.0, 1.0], [-omega**2, -2 * damping * omega]]),
+        np.array([[0.0], [1.0]]),
+        np.eye(2),
+        np.zeros((2, 1)),
+    )
+    x0 = np.array([0.001, -0.01])
+    _, _, states = signal.lsim(system, -record.accel, record.time, X0=x0, interp=True)
+    result = linear_response(record, period, damping, "exact", initial_displacement=x0[0], initial_velocity=x0[1])
+    # both exact for piecewise-linear input; differences are round-off of two algorithms
+    scale_u = np.max(np.abs(states[:, 0]))
+    scale_v = np.max(np.abs(states[:, 1]))
+    assert_allclose(result.displacement, states[:, 0], rtol=0, atol=1e-9 * scale_u)
+    assert_allclose(result.velocity, states[:, 1], rtol=0, atol=1e-9 * scale_v)
+
+
+# --- convergence --------------------------------------------------------------
+
+
+def _smooth_record(dt: float) -> Record:
+    t = np.arange(0.0, 6.0 + dt / 2, dt)
+    accel = np.sin(2.1 * t) * np.exp(-0.3 * t) + 0.5 * np.sin(5.3 * t + 0.4)
+    return Record(accel, dt=dt, unit="m/s2")
+
+
+def test_average_acceleration_converges_at_second_order():
+    """Halving Δt cuts the error against the exact solution by 4 (second order, Newmark 1959)."""
+    errors = []
+    for dt in (0.04, 0.02, 0.01, 0.005):
+        record = _smooth_record(dt)
+        exact = linear_response(record, 0.6, 0.05, "exact").displacement
+        average = linear_response(record, 0.6, 0.05, "average", max_step_ratio=None).displacement
+        errors.append(np.max(np.abs(average - exact)))
+    ratios = np.array(errors[:-1]) / np.array(errors[1:])
+    # asymptotic ratio 2² = 4; the coarsest pair (Δt/T = 1/15) is already close
+    assert_allclose(ratios, 4.0, rtol=0.08)
+
+
+def test_linear_acceleration_converges_at_second_order():
+    """Linear acceleration is also second order (γ = 1/2)."""
+    errors = []
+    for dt in (0.02, 0.01, 0.005):
+        record = _smooth_record(dt)
+        exact = linear_response(record, 0.6, 0.05, "exact").displacement
+        linear = linear_response(record, 0.6, 0.05, "linear", max_step_ratio=None).displacement
+        errors.append(np.max(np.abs(linear - exact)))
+    assert_allclose(np.array(errors[:-1]) / np.array(errors[1:]), 4.0, rtol=0.08)
+
+
+# --- sub-stepping and stability -----------------------------------------------
+
+
+def test_substeps_equal_stepping_an_interpolated_record():
+    """Sub-stepping equals running the record linearly interpolated onto the sub-step grid."""
+    record = _random_record(7, n=400, dt=0.02)
+    period = 0.05  # Δt/T = 0.4 -> 4 sub-steps at the default limit 0.1
+    with pytest.warns(SubstepWarning, match="split into 4 sub-steps"):
+        result = linear_response(record, period, 0.05, "average")
+    assert result.substeps == 4
+    fine_time = np.arange((record.n - 1) * 4 + 1) * (record.dt / 4)
+    fine = Record(np.interp(fine_time, record.time, record.accel), dt=record.dt / 4, unit="m/s2")
+    reference = linear_response(fine, period, 0.05, "average", max_step_ratio=None)
+    # same arithmetic in a different order: round-off only
+    scale = np.max(np.abs(reference.displacement))
+    assert_allclose(result.displacement, reference.displacement[::4], rtol=0, atol=1e-12 * scale)
+    assert_allclose(result.velocity, reference.velocity[::4], rtol=0, atol=1e-11 * np.max(np.abs(reference.velocity)))
+
+
+def test_substepping_brings_newmark_close_to_exact():
+    """With sub-steps, a short-period oscillator on a coarse record is close to the exact answer."""
+    record = _random_record(11, n=500, dt=0.02)
+    exact = linear_response(record, 0.04, 0.05, "exact").peak_displacement
+    fine = _quiet(linear_response, record, 0.04, 0.05, "average", max_step_ratio=0.02).peak_displacement
+    coarse = linear_response(record, 0.04, 0.05, "average", max_step_ratio=None).peak_displacement
+    # at Δt/T = 0.02 the period error is (2π·0.02)²/12 ≈ 1.3e-3; 1 % is generous
+    assert fine == pytest.approx(exact, rel=1e-2)
+    assert abs(coarse - exact) > abs(fine - exact)
+
+
+def test_linear_acceleration_diverges_past_stability_limit_without_substeps():
+    """Linear acceleration at Δt/T = 0.6 > √3/π grows without bound (Newmark 1959)."""
+    from groundstep.core import _coefficients, _kernels
+
+    omega = 2 * math.pi / 1.0
+    coef = _coefficients.newmark(np.array([omega]), np.array([0.0]), 0.6, 1.0 / 6.0, 0.5)
+    n = 200
+    u, v = np.empty(n), np.empty(n)
+    _kernels.history(np.zeros(n), coef, 1.0, 0.0, u, v)
+    assert np.max(np.abs(u)) > 1e6  # spectral radius > 1: geometric growth
+    # just inside the limit (Δt/T = 0.55 < 0.5513) it stays bounded by its initial energy scale
+    coef = _coefficients.newmark(np.array([omega]), np.array([0.0]), 0.55, 1.0 / 6.0, 0.5)
+    _kernels.history(np.zeros(n), coef, 1.0, 0.0, u, v)
+    assert np.max(np.abs(u)) < 10.0
+
+
+def test_linear_acceleration_is_kept_stable_by_the_public_api():
+    """Even with the accuracy limit off, the public API sub-steps linear acceleration to stay stable."""
+    record = Record(np.zeros(200), dt=0.6, unit="m/s2")
+    with pytest.warns(SubstepWarning, match="split into 2 sub-steps"):
+        result = linear_response(record, 1.0, 0.0, "linear", max_step_ratio=None, initial_displacement=1.0)
+    assert result.substeps == 2  # 0.6 / 2 = 0.3 <= √3/π
+    assert result.peak_displacement < 1.5
+    default = _quiet(linear_response, record, 1.0, 0.0, "linear", initial_displacement=1.0)
+    assert default.substeps == 6  # default accuracy limit Δt/T <= 0.1
+    assert default.peak_displacement < 1.5
+
+
+def test_stability_limits():
+    """Critical Δt/T: √3/π for linear acceleration, 1/π for central difference (Newmark 1959)."""
+    from groundstep.core._methods import resolve_method
+
+    assert resolve_method("linear").stability_limit == pytest.approx(math.sqrt(3) / math.pi, rel=1e-14)
+    assert resolve_method((0.0, 0.5)).stability_limit == pytest.approx(1 / math.pi, rel=1e-14)
+    assert math.isinf(resolve_method("average").stability_limit)
+    assert resolve_method((0.25, 0.5)).name == "average"
+
+
+# --- spectra ------------------------------------------------------------------
+
+
+def test_spectrum_identities():
+    """PSA = ω²·SD and PSV = ω·SD exactly (definitions)."""
+    record = _random_record(5)
+    spectrum = _quiet(elastic_spectrum, record, period_grid(0.02, 5.0, 40), [0.0, 0.05, 0.2])
+    omega = 2 * np.pi / spectrum.periods
+    assert_allclose(spectrum.psa, omega**2 * spectrum.sd, rtol=1e-15)
+    assert_allclose(spectrum.psv, omega * spectrum.sd, rtol=1e-15)
+    assert spectrum.sd.shape == (3, 40)
+
+
+@pytest.mark.parametrize("method", ["average", "linear", "exact", (0.3, 0.6)])
+def test_spectrum_equals_single_oscillator_peaks(method):
+    """Each spectrum entry equals the peaks of linear_response for that oscillator."""
+    record = _random_record(9)
+    periods = [0.0, 0.04, 0.3, 2.0]
+    spectrum = _quiet(elastic_spectrum, record, periods, [0.02, 0.1], method)
+    for i, damping in enumerate([0.02, 0.1]):
+        for j, period in enumerate(periods):
+            single = _quiet(linear_response, record, period, damping, method)
+            # two kernels, same recurrence; fastmath may reorder the sums
+            assert spectrum.sd[i, j] == pytest.approx(single.peak_displacement, rel=1e-12, abs=1e-300)
+            assert spectrum.sv[i, j] == pytest.approx(single.peak_velocity, rel=1e-12, abs=1e-300)
+            assert spectrum.sa[i, j] == pytest.approx(single.peak_total_acceleration, rel=1e-12)
+            assert spectrum.psa[i, j] == pytest.approx(single.pseudo_acceleration, rel=1e-12)
+
+
+def test_rigid_oscillator_follows_the_ground():
+    """Period 0: total acceleration is the ground acceleration; SD = SV = 0; PSA = SA = PGA."""
+    record = _random_record(3)
+    result = linear_response(record, 0.0)
+    assert_allclose(result.total_acceleration, record.accel, rtol=0, atol=0)
+    assert result.peak_displacement == 0.0
+    spectrum = elastic_spectrum(record, [0.0], [0.05])
+    assert spectrum.psa[0, 0] == spectrum.sa[0, 0] == record.pga
+
+
+def test_short_period_psa_approaches_pga():
+    """PSA at a very short period equals PGA (the oscillator moves with the ground)."""
+    dt = 0.005
+    t = np.arange(0.0, 8.0, dt)
+    record = Record(np.sin(2 * np.pi * 1.3 * t) * np.exp(-0.2 * t) + 0.3 * np.sin(2 * np.pi * 4.1 * t), dt, "m/s2")
+    spectrum = elastic_spectrum(record, [0.002], [0.05], "exact")
+    # quasi-static error ≈ (f_ground / f_oscillator)² = (4.1 / 500)² ≈ 7e-5, plus sampling of the crest
+    assert spectrum.psa[0, 0] == pytest.approx(record.pga, rel=1e-3)
+
+
+def test_long_period_sd_approaches_peak_ground_displacement():
+    """SD at a very long period equals PGD for a ground motion that returns to rest."""
+    dt, duration, peak = 0.005, 4.0, 0.12
+    t = np.arange(0.0, duration + dt / 2, dt)
+    # ground displacement d = D sin²(πt/τ): starts and ends at rest; ü_g = D (2π²/τ²) cos(2πt/τ)
+    accel = peak * 2 * np.pi**2 / duration**2 * np.cos(2 * np.pi * t / duration)
+    record = Record(np.concatenate([accel, np.zeros(400)]), dt, "m/s2")
+    spectrum = elastic_spectrum(record, [1.0e5], [0.05], "exact")
+    # the mass stays put: |u| = |d_g| up to the damping force's drag, relative 2ζωτ ≈ 2.5e-5,
+    # the spring's (ωτ)² ≈ 6e-8, and O((dt/τ)²) ≈ 2e-6 from linear interpolation of ü_g
+    assert spectrum.sd[0, 0] == pytest.approx(peak, rel=1e-4)
+
+
+def test_period_grid():
+    """period_grid gives log-spaced periods with exact end points."""
+    grid = period_grid(0.05, 5.0, 5)
+    assert grid[0] == 0.05 and grid[-1] == 5.0
+    assert_allclose(np.diff(np.log(grid)), np.log(100.0) / 4, rtol=1e-12)
+
+
+# --- bad input ------------------------------------------------------------------
+
+
+@pytest.mark.parametrize(
+    ("kwargs", "error", "message"),
+    [
+        ({"period": -0.1}, ValueError, r"`period` must be >= 0 s; index 0 holds -0.1"),
+        ({"period": [0.1, 0.2]}, ValueError, r"`period` must be one number"),
+        ({"damping": 5.0}, ValueError, r"5 looks like a percentage: enter 0.05"),
+        ({"damping": 1.0}, ValueError, r"ratio of critical damping in \[0, 1\); index 0 holds 1.0"),
+        ({"damping": -0.01}, ValueError, r"`damping` must be >= 0"),
+        ({"damping": float("nan")}, ValueError, r"`damping` must be finite"),
+        ({"method": "wilson"}, ValueError, r"`method` 'wilson' is not known"),
+        ({"method": (0.25, 0.4)}, ValueError, r"gamma must lie in \[0.5, 1\]"),
+        ({"method": (0.7, 0.5)}, ValueError, r"beta must lie in \[0, 0.5\]"),
+        ({"method": 3}, TypeError, r"`method` must be 'average', 'linear', 'exact' or a \(beta, gamma\) pair"),
+        ({"max_step_ratio": 0.0}, ValueError, r"`max_step_ratio` must be > 0"),
+        ({"initial_velocity": "fast"}, TypeError, r"`initial_velocity` must be a number"),
+    ],
+)
+def test_bad_linear_input_is_named(kwargs, error, message):
+    """Bad oscillator settings raise an error naming the argument, the rule and the value."""
+    record = _random_record(1, n=50)
+    arguments = {"period": 0.5} | kwargs
+    with pytest.raises(error, match=message):
+        linear_response(record, **arguments)
+
+
+def test_record_must_be_a_record():
+    """A bare array in place of a Record gets a message saying how to build one."""
+    with pytest.raises(TypeError, match=r"`record` must be a groundstep Record, got ndarray"):
+        elastic_spectrum(np.zeros(10), [0.5])
+
+
+def test_bad_spectrum_input_names_the_index():
+    """A bad entry in periods or dampings is named by its index."""
+    record = _random_record(1, n=50)
+    with pytest.raises(ValueError, match=r"`periods` must be >= 0 s; index 2 holds -1.0"):
+        elastic_spectrum(record, [0.1, 0.2, -1.0])
+    with pytest.raises(ValueError, match=r"`dampings` .* index 1 holds 20.0; 20 looks like a percentage: enter 0.2"):
+        elastic_spectrum(record, [0.1], [0.05, 20.0])
