@@ -60,8 +60,8 @@ class Record:
     Examples
     --------
     >>> rec = Record([0.0, 0.1, -0.05, 0.0], dt=0.01, unit="g")
-    >>> round(rec.pga, 5)
-    0.98066
+    >>> round(rec.pga, 4)  # 0.1 g in m/s²
+    0.9807
     """
 
     accel: NDArray[np.float64]
