@@ -271,17 +271,31 @@ def test_short_period_psa_approaches_pga():
     assert spectrum.psa[0, 0] == pytest.approx(record.pga, rel=1e-3)
 
 
-def test_long_period_sd_approaches_peak_ground_displacement():
+@pytest.mark.parametrize("method", ["exact", "average", "linear"])
+def test_long_period_sd_approaches_peak_ground_displacement(method):
     """SD at a very long period equals PGD for a ground motion that returns to rest."""
     dt, duration, peak = 0.005, 4.0, 0.12
     t = np.arange(0.0, duration + dt / 2, dt)
     # ground displacement d = D sin²(πt/τ): starts and ends at rest; ü_g = D (2π²/τ²) cos(2πt/τ)
     accel = peak * 2 * np.pi**2 / duration**2 * np.cos(2 * np.pi * t / duration)
     record = Record(np.concatenate([accel, np.zeros(400)]), dt, "m/s2")
-    spectrum = elastic_spectrum(record, [1.0e5], [0.05], "exact")
+    spectrum = elastic_spectrum(record, [1.0e5], [0.05], method)
     # the mass stays put: |u| = |d_g| up to the damping force's drag, relative 2ζωτ ≈ 2.5e-5,
     # the spring's (ωτ)² ≈ 6e-8, and O((dt/τ)²) ≈ 2e-6 from linear interpolation of ü_g
+    # (Newmark adds its own O(dt²/τ²) ≈ 2e-6 integration error)
     assert spectrum.sd[0, 0] == pytest.approx(peak, rel=1e-4)
+
+
+def test_zero_damping_and_very_long_period_stay_finite():
+    """ζ = 0 and T = 1e6 s run without overflow: the relative motion is minus the ground's."""
+    record = _smooth_record(0.005)
+    ground = record.ground_displacement()
+    for method in ("average", "exact"):
+        result = linear_response(record, 1.0e6, 0.0, method)
+        assert np.all(np.isfinite(result.displacement))
+        # (ωt)² ≈ 1e-9 over the 6 s record: the mass does not move; the average-acceleration
+        # rule integrates ü_g with an O(dt²) error of about 1e-5 of the peak on this smooth record
+        assert_allclose(result.displacement, -ground, rtol=0, atol=1e-4 * np.max(np.abs(ground)))
 
 
 def test_period_grid():
