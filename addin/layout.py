@@ -1,0 +1,448 @@
+"""The one layout description of the result workbook (data only).
+
+Sheets, blocks, columns, named cells, number formats, formulas and charts
+are described here as frozen dataclasses. Both writers (``workbook.py`` with
+openpyxl, ``live.py`` with xlwings) and the checker (``verify.py``) walk the
+same description through ``report_render.render``; nothing here imports a
+spreadsheet library or computes a result.
+
+Positions are 1-based (row, column). Every field value cell and every table
+data column gets a workbook-level defined name ``NAME_PREFIX + key``.
+
+Formula templates use ``str.format`` fields: ``{r}`` this row, ``{q}`` the
+row above, ``{rr}`` the matching row of the source table, a column key of the
+same table (its column letter), a field key of any sheet (its absolute
+address without sheet name, e.g. ``$B$5``), or ``{TABLE.COLUMN}`` (the
+absolute range of a table column's data, e.g. ``$J$9:$J$2009``).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = [
+    "CAUTION",
+    "FORMAT_ID",
+    "NAME_PREFIX",
+    "Chart",
+    "Column",
+    "Field",
+    "Fields",
+    "FormulaColumn",
+    "FormulaTable",
+    "Sheet",
+    "Table",
+    "WorkbookLayout",
+    "result_layout",
+]
+
+#: Shown on the Summary sheet, the Audit sheet and by the command line (project rule 5).
+CAUTION = "Results support, not replace, engineering judgement; local codes and licensed practice govern."
+#: Stored on the Audit sheet; ``verify`` reads a workbook only when it finds this.
+FORMAT_ID = "groundstep-result-workbook/1"
+#: Prefix of every defined name the result workbook carries.
+NAME_PREFIX = "gs_"
+
+# number formats (spreadsheet format codes, understood by Excel and LibreOffice)
+GENERAL = "General"
+TEXT = "@"
+FIXED3 = "0.000"
+FIXED4 = "0.0000"
+SCIENTIFIC = "0.00000E+00"
+INTEGER = "0"
+
+
+@dataclass(frozen=True, slots=True)
+class Field:
+    """One labelled value: label in the block's first column, value beside it, unit after."""
+
+    key: str
+    label: str
+    unit: str = ""
+    number_format: str = GENERAL
+
+
+@dataclass(frozen=True, slots=True)
+class Fields:
+    """A vertical list of fields under a bold title.
+
+    `checked` blocks hold results that ``verify`` recomputes; `formulas`
+    maps a field key to a formula template written instead of a value.
+    """
+
+    key: str
+    title: str
+    row: int
+    column: int
+    fields: tuple[Field, ...]
+    checked: bool = False
+    formulas: tuple[tuple[str, str], ...] = ()
+
+
+@dataclass(frozen=True, slots=True)
+class Column:
+    """One column of a value table. The header shows ``header [unit]``."""
+
+    key: str
+    header: str
+    unit: str = ""
+    number_format: str = GENERAL
+    width: float = 14.0
+
+
+@dataclass(frozen=True, slots=True)
+class Table:
+    """A table of values: title row, header row, then `rows` data rows."""
+
+    key: str
+    title: str
+    row: int
+    column: int
+    columns: tuple[Column, ...]
+    rows: int
+    checked: bool = False
+
+
+@dataclass(frozen=True, slots=True)
+class FormulaColumn:
+    """A column of formulas: `first` in the first data row, `step` below it."""
+
+    key: str
+    header: str
+    first: str
+    step: str
+    unit: str = ""
+    number_format: str = GENERAL
+    width: float = 14.0
+
+
+@dataclass(frozen=True, slots=True)
+class FormulaTable:
+    """A table of formulas; ``{rr}`` refers to the same data row of table `source` on sheet `source_sheet`."""
+
+    key: str
+    title: str
+    row: int
+    column: int
+    columns: tuple[FormulaColumn, ...]
+    rows: int
+    source_sheet: str = ""
+    source: str = ""
+
+
+@dataclass(frozen=True, slots=True)
+class Chart:
+    """A native scatter chart (straight lines, no markers) of table columns.
+
+    Each entry of `series` is (y column key, series title); all share the
+    `x` column of `table`.
+    """
+
+    key: str
+    title: str
+    table: str
+    x: str
+    series: tuple[tuple[str, str], ...]
+    x_title: str
+    y_title: str
+    row: int
+    column: int
+    log_x: bool = False
+    width_cm: float = 16.0
+    height_cm: float = 8.5
+
+
+@dataclass(frozen=True, slots=True)
+class Sheet:
+    """One worksheet: its blocks in writing order and its charts."""
+
+    name: str
+    title: str
+    blocks: tuple[Fields | Table | FormulaTable, ...]
+    charts: tuple[Chart, ...] = ()
+
+
+@dataclass(frozen=True, slots=True)
+class WorkbookLayout:
+    """All sheets, in order."""
+
+    sheets: tuple[Sheet, ...]
+
+    def sheet(self, name: str) -> Sheet:
+        """The sheet called `name` (KeyError naming the sheets otherwise)."""
+        for sheet in self.sheets:
+            if sheet.name == name:
+                return sheet
+        raise KeyError(f"no sheet {name!r}; the layout has {[s.name for s in self.sheets]}")
+
+
+# --- the result workbook -----------------------------------------------------------------------
+
+SUMMARY, RECORD, SPECTRA, PEAKS, VERIFICATION, AUDIT = "Summary", "Record", "Spectra", "Peaks", "Verification", "Audit"
+#: First data row of the Record table; the Verification steps start on the same row.
+RECORD_FIRST_ROW = 9
+#: Relative tolerance of the Verification sheet: the same recurrence evaluated in another
+#: order of floating-point operations; 2000 steps of a damped oscillator lose far fewer digits.
+VERIFY_TOLERANCE = 1e-9
+
+
+def damping_label(damping: float) -> str:
+    """Text for one damping ratio in headers and series titles."""
+    return f"ζ = {damping:g}"
+
+
+def result_layout(
+    n_samples: int, n_periods: int, dampings: tuple[float, ...], n_oscillators: int, unit: str, length_unit: str
+) -> WorkbookLayout:
+    """The result workbook's layout for the given sizes and units.
+
+    Parameters
+    ----------
+    n_samples, n_periods, n_oscillators : int
+        Record samples, spectrum periods and Peaks oscillators.
+    dampings : tuple of float
+        Spectrum dampings (one column group and one chart series each).
+    unit, length_unit : str
+        Acceleration unit of the record and the matching length unit, shown
+        in headers.
+    """
+    velocity_unit = f"{length_unit}/s"
+    return WorkbookLayout(
+        (
+            _summary(dampings, unit, length_unit, velocity_unit),
+            _record(n_samples, unit),
+            _spectra(n_periods, dampings, unit, length_unit, velocity_unit),
+            _peaks(n_oscillators, unit, length_unit, velocity_unit),
+            _verification(n_samples),
+            _audit(),
+        )
+    )
+
+
+def _summary(dampings, unit, length_unit, velocity_unit) -> Sheet:
+    project = Fields(
+        "project", "Scenario and project", 4, 1,
+        (
+            Field("project", "Project"),
+            Field("site", "Site"),
+            Field("structure", "Structures"),
+            Field("engineer", "Prepared by"),
+            Field("scenario", "Scenario"),
+        ),
+    )  # fmt: skip
+    record = Fields(
+        "record_summary", "Record", 11, 1,
+        (
+            Field("record_name", "Record"),
+            Field("samples", "Samples", "", INTEGER),
+            Field("duration", "Duration", "s", FIXED3),
+            Field("pga", "Peak ground acceleration", unit, SCIENTIFIC),
+            Field("pgv", "Peak ground velocity", velocity_unit, SCIENTIFIC),
+            Field("pgd", "Peak ground displacement", length_unit, SCIENTIFIC),
+            Field("arias", "Arias intensity (Arias 1970)", "m/s", SCIENTIFIC),
+            Field("significant_duration", "Significant duration 5-95 % (Trifunac & Brady 1975)", "s", FIXED3),
+        ),
+        checked=True,
+    )  # fmt: skip
+    key = Table(
+        "key_results", "Key results per damping", 21, 1,
+        (
+            Column("damping", "Damping ratio", "", FIXED4),
+            Column("peak_psa", "Largest PSA", unit, SCIENTIFIC),
+            Column("peak_psa_period", "at period", "s", FIXED4),
+            Column("peak_sd", "Largest SD", length_unit, SCIENTIFIC),
+            Column("peak_sd_period", "at period", "s", FIXED4),
+        ),
+        len(dampings),
+        checked=True,
+    )  # fmt: skip
+    check = Fields(
+        "check", "Check", 24 + len(dampings), 1,
+        (Field("check_status", "Verification sheet (formulas replaying the recurrence)"),),
+        formulas=(("check_status", f"={VERIFICATION}!{{verification_overall}}"),),
+    )  # fmt: skip
+    return Sheet(SUMMARY, "groundstep result workbook", (project, record, key, check))
+
+
+def _record(n_samples, unit) -> Sheet:
+    fields = Fields(
+        "record", "Ground acceleration record", 3, 1,
+        (
+            Field("record_unit", "Acceleration unit", "", TEXT),
+            Field("dt", "Time step", "s", GENERAL),
+            Field("unit_factor", "Unit to m/s² factor", "m/s² per unit", GENERAL),
+        ),
+    )  # fmt: skip
+    table = Table(
+        "record_table", "Samples", RECORD_FIRST_ROW - 2, 1,
+        (
+            Column("time", "Time", "s", FIXED3, 10.0),
+            Column("accel", "Acceleration", unit, GENERAL, 16.0),
+            Column("arias", "Normalised Arias intensity (Arias 1970)", "-", FIXED4, 18.0),
+        ),
+        n_samples,
+    )  # fmt: skip
+    chart = Chart(
+        "record_chart", "Ground acceleration", "record_table", "time", (("accel", "acceleration"),),
+        "Time [s]", f"Acceleration [{unit}]", 3, 5,
+    )  # fmt: skip
+    return Sheet(RECORD, "Ground acceleration record", (fields, table), (chart,))
+
+
+def _spectra(n_periods, dampings, unit, length_unit, velocity_unit) -> Sheet:
+    columns = [Column("period", "Period", "s", FIXED4, 10.0)]
+    for index, damping in enumerate(dampings):
+        label = damping_label(damping)
+        columns += [
+            Column(f"sd_{index}", f"SD {label}", length_unit, SCIENTIFIC),
+            Column(f"psv_{index}", f"PSV {label}", velocity_unit, SCIENTIFIC),
+            Column(f"psa_{index}", f"PSA {label}", unit, SCIENTIFIC),
+            Column(f"sa_{index}", f"SA {label}", unit, SCIENTIFIC),
+        ]
+    table = Table("spectra_table", "Elastic response spectra", 3, 1, tuple(columns), n_periods, checked=True)
+    right = len(columns) + 2
+    charts = tuple(
+        Chart(
+            f"{quantity}_chart", title, "spectra_table", "period",
+            tuple((f"{quantity}_{i}", damping_label(d)) for i, d in enumerate(dampings)),
+            "Period [s] (logarithmic)", axis, 3 + offset, right, log_x=True,
+        )
+        for quantity, title, axis, offset in (
+            ("psa", "Pseudo-spectral acceleration", f"PSA [{unit}]", 0),
+            ("sd", "Spectral displacement", f"SD [{length_unit}]", 19),
+        )
+    )  # fmt: skip
+    return Sheet(SPECTRA, "Elastic response spectra", (table,), charts)
+
+
+def _peaks(n_oscillators, unit, length_unit, velocity_unit) -> Sheet:
+    table = Table(
+        "peaks_table", "Peak response of the oscillators", 3, 1,
+        (
+            Column("label", "Oscillator", "", GENERAL, 22.0),
+            Column("period", "Period", "s", FIXED4),
+            Column("damping", "Damping ratio", "", FIXED4),
+            Column("sd", "SD", length_unit, SCIENTIFIC),
+            Column("sv", "SV", velocity_unit, SCIENTIFIC),
+            Column("sa", "SA", unit, SCIENTIFIC),
+            Column("psv", "PSV", velocity_unit, SCIENTIFIC),
+            Column("psa", "PSA", unit, SCIENTIFIC),
+            Column("time_sd", "Time of SD", "s", FIXED3),
+            Column("time_sa", "Time of SA", "s", FIXED3),
+            Column("substeps", "Sub-steps per step", "", INTEGER),
+        ),
+        n_oscillators,
+        checked=True,
+    )  # fmt: skip
+    return Sheet(PEAKS, "Peak response of the oscillators", (table,))
+
+
+def _verification(n_samples) -> Sheet:
+    inputs = Fields(
+        "verification_inputs", "Oscillator (input cells)", 3, 1,
+        (
+            Field("verification_period", "Period T", "s", FIXED4),
+            Field("verification_damping", "Damping ratio ζ", "", FIXED4),
+            Field("verification_beta", "Newmark β", "", GENERAL),
+            Field("verification_gamma", "Newmark γ", "", GENERAL),
+            Field("verification_dt", "Time step h (from the Record sheet)", "s", GENERAL),
+            Field("verification_factor", "Unit to m/s² (from the Record sheet)", "", GENERAL),
+        ),
+        formulas=(
+            ("verification_dt", f"={RECORD}!{{dt}}"),
+            ("verification_factor", f"={RECORD}!{{unit_factor}}"),
+        ),
+    )  # fmt: skip
+    constants = Fields(
+        "verification_constants", "Newmark constants (Newmark 1959)", 11, 1,
+        (
+            Field("omega", "ω = 2π/T", "rad/s", GENERAL),
+            Field("c", "c = 2ζω (per unit mass)", "1/s", GENERAL),
+            Field("k", "k = ω² (per unit mass)", "1/s²", GENERAL),
+            Field("denominator", "D = 1 + γhc + βh²k", "", GENERAL),
+            Field("step_ratio", "h/T (no sub-steps: ≤ 0.1)", "", FIXED4),
+        ),
+        formulas=(
+            ("omega", "=2*PI()/{verification_period}"),
+            ("c", "=2*{verification_damping}*{omega}"),
+            ("k", "={omega}^2"),
+            ("denominator", "=1+{verification_gamma}*{verification_dt}*{c}"
+                            "+{verification_beta}*{verification_dt}^2*{k}"),
+            ("step_ratio", "={verification_dt}/{verification_period}"),
+        ),
+    )  # fmt: skip
+    peak = "=MAX(MAX({{verification_steps.{0}}}),-MIN({{verification_steps.{0}}}))"
+    rel = "=ABS({{formula_{0}}}-{{python_{0}}})/MAX(ABS({{python_{0}}}),1E-300)"
+    check_fields, check_formulas = [], []
+    quantities = (("u", "u", "Peak |u| (SD)", "m"), ("v", "v", "Peak |u̇| (SV)", "m/s"),
+                  ("t", "total", "Peak |ü + ü_g| (SA)", "m/s²"))  # fmt: skip
+    for quantity, column, label, si_unit in quantities:
+        check_fields += [
+            Field(f"formula_{quantity}", f"{label} by formula", si_unit, SCIENTIFIC),
+            Field(f"python_{quantity}", f"{label} by groundstep", si_unit, SCIENTIFIC),
+            Field(f"rel_{quantity}", "relative difference", "", SCIENTIFIC),
+        ]
+        check_formulas += [(f"formula_{quantity}", peak.format(column)), (f"rel_{quantity}", rel.format(quantity))]
+    check_fields.append(Field("verification_overall", f"All within {VERIFY_TOLERANCE:g} relative"))
+    within = ",".join(f"{{rel_{q}}}<={VERIFY_TOLERANCE!r}" for q in "uvt")
+    check_formulas.append(("verification_overall", f'=IF(AND({within}),"pass","FAIL")'))
+    check = Fields(
+        "verification_check", "Check", 18, 1, tuple(check_fields), checked=True, formulas=tuple(check_formulas)
+    )  # the python_* values are checked by verify; formula cells are not
+    a_prev = "{a}{q}"
+    predictor_u = "{u}{q}+{verification_dt}*{v}{q}+{verification_dt}^2*(0.5-{verification_beta})*" + a_prev
+    predictor_v = "{v}{q}+{verification_dt}*(1-{verification_gamma})*" + a_prev
+    steps = FormulaTable(
+        "verification_steps", "Every step of the recurrence (SI units; row i uses row i-1)", RECORD_FIRST_ROW - 2, 6,
+        (
+            FormulaColumn("time", "Time", f"={RECORD}!A{{rr}}", f"={RECORD}!A{{rr}}", "s", FIXED3, 9.0),
+            FormulaColumn("ag", "ü_g", f"={RECORD}!B{{rr}}*{{verification_factor}}",
+                          f"={RECORD}!B{{rr}}*{{verification_factor}}", "m/s²", SCIENTIFIC),
+            FormulaColumn("a", "ü (relative)", "=-{ag}{r}",
+                          "=(-{ag}{r}-{k}*(" + predictor_u + ")-{c}*(" + predictor_v + "))/{denominator}",
+                          "m/s²", SCIENTIFIC),
+            FormulaColumn("u", "u", "=0",
+                          "={u}{q}+{verification_dt}*{v}{q}+{verification_dt}^2*((0.5-{verification_beta})*{a}{q}"
+                          "+{verification_beta}*{a}{r})", "m", SCIENTIFIC),
+            FormulaColumn("v", "u̇", "=0",
+                          "={v}{q}+{verification_dt}*((1-{verification_gamma})*{a}{q}+{verification_gamma}*{a}{r})",
+                          "m/s", SCIENTIFIC),
+            FormulaColumn("total", "ü + ü_g = -(c·u̇ + k·u)", "=-({c}*{v}{r}+{k}*{u}{r})",
+                          "=-({c}*{v}{r}+{k}*{u}{r})", "m/s²", SCIENTIFIC),
+        ),
+        n_samples,
+        source_sheet=RECORD,
+        source="record_table",
+    )  # fmt: skip
+    return Sheet(VERIFICATION, "Verification: one oscillator replayed by formulas", (inputs, constants, check, steps))
+
+
+def _audit() -> Sheet:
+    fields = Fields(
+        "audit", "Provenance", 3, 1,
+        (
+            Field("format", "Workbook format", "", TEXT),
+            Field("created", "Created (UTC)", "", TEXT),
+            Field("command", "Command line", "", TEXT),
+            Field("groundstep_version", "groundstep", "", TEXT),
+            Field("python_version", "Python", "", TEXT),
+            Field("library_versions", "numpy / scipy / numba / openpyxl", "", TEXT),
+            Field("platform", "Platform", "", TEXT),
+            Field("record_sha256", "Record SHA-256 (samples in own unit, unit, dt)", "", TEXT),
+            Field("record_source", "Record source", "", TEXT),
+            Field("caution", "Caution", "", TEXT),
+        ),
+    )  # fmt: skip
+    settings = Fields(
+        "settings", "Method and settings", 15, 1,
+        (
+            Field("method", "Method", "", TEXT),
+            Field("method_description", "Method description", "", TEXT),
+            Field("beta", "β", "", GENERAL),
+            Field("gamma", "γ", "", GENERAL),
+            Field("max_step_ratio", "Largest h/T before sub-stepping (blank: off)", "", GENERAL),
+            Field("dampings", "Spectrum dampings", "", TEXT),
+            Field("period_grid", "Spectrum periods", "", TEXT),
+        ),
+    )  # fmt: skip
+    return Sheet(AUDIT, "Audit trail", (fields, settings))

@@ -1,0 +1,280 @@
+"""Content of the result workbook: settings in, every value the layout shows out.
+
+One function, `build_report`, calls the ``groundstep.core`` API and returns the
+layout (``layout.result_layout``) with the values for each of its blocks. The
+openpyxl writer, the xlwings writer and ``verify`` all use it, so a workbook
+and its re-check are computed the same way.
+"""
+
+from __future__ import annotations
+
+import math
+import platform
+import sys
+import warnings
+from dataclasses import dataclass, field
+from datetime import datetime, timezone
+from typing import Any
+
+import numpy as np
+
+from groundstep.core import Record, __version__, elastic_spectrum, linear_response, period_grid
+from groundstep.core._methods import resolve_method
+from groundstep.core._units import ACCELERATION_UNITS, LENGTH_UNITS, MATCHING_LENGTH_UNIT
+from groundstep.core.measures import arias_intensity, normalised_arias, significant_duration
+
+from . import layout as lay
+
+__all__ = ["DEFAULT_DAMPINGS", "Oscillator", "Report", "ReportSettings", "build_report", "default_periods"]
+
+#: Spectrum dampings when none are given: 2 %, 5 % and 10 % of critical are the
+#: values most often tabulated (common practice).
+DEFAULT_DAMPINGS = (0.02, 0.05, 0.10)
+#: Largest h/T the Verification oscillator may have: at or below the default
+#: sub-stepping limit, so the sheet replays exactly the steps groundstep takes.
+_VERIFY_STEP_RATIO = 0.1
+PROJECT_KEYS = ("project", "site", "structure", "engineer", "scenario")
+
+
+def default_periods() -> tuple[float, ...]:
+    """80 log-spaced periods from 0.02 s to 10 s."""
+    return tuple(float(p) for p in period_grid(0.02, 10.0, 80))
+
+
+@dataclass(frozen=True, slots=True)
+class Oscillator:
+    """One of the engineer's oscillators: a label, period [s] and damping ratio."""
+
+    label: str
+    period: float
+    damping: float = 0.05
+
+
+@dataclass(frozen=True, slots=True)
+class ReportSettings:
+    """What to compute for a result workbook.
+
+    Attributes
+    ----------
+    periods : tuple of float
+        Spectrum periods [s], > 0.
+    dampings : tuple of float
+        Spectrum damping ratios.
+    method : str or (beta, gamma)
+        As in ``groundstep.core.elastic_spectrum``.
+    max_step_ratio : float or None
+        As in ``groundstep.core.elastic_spectrum``.
+    oscillators : tuple of Oscillator
+        The Peaks sheet's oscillators.
+    verification_period, verification_damping : float or None, float
+        The Verification sheet's oscillator; ``None`` picks the first
+        oscillator with h/T <= 0.1, else 1 s (or 10·h if that is longer).
+    project : tuple of (key, text)
+        Summary fields (keys ``project``, ``site``, ``structure``,
+        ``engineer``, ``scenario``).
+    """
+
+    periods: tuple[float, ...] = field(default_factory=default_periods)
+    dampings: tuple[float, ...] = DEFAULT_DAMPINGS
+    method: Any = "average"
+    max_step_ratio: float | None = 0.1
+    oscillators: tuple[Oscillator, ...] = ()
+    verification_period: float | None = None
+    verification_damping: float = 0.05
+    project: tuple[tuple[str, str], ...] = ()
+
+
+@dataclass(frozen=True, slots=True)
+class Report:
+    """A layout and the values of its blocks (``content[block key][field or column key]``)."""
+
+    layout: lay.WorkbookLayout
+    content: dict[str, dict[str, Any]]
+    headline: dict[str, Any]
+
+
+def build_report(
+    record: Record,
+    settings: ReportSettings,
+    *,
+    command: str = "",
+    source: str = "",
+    created: str | None = None,
+) -> Report:
+    """Compute every value of the result workbook for `record`.
+
+    Parameters
+    ----------
+    record : Record
+        The ground acceleration.
+    settings : ReportSettings
+    command : str
+        The command line that made the workbook (Audit sheet).
+    source : str
+        Where the record came from (Audit sheet).
+    created : str, optional
+        ISO time stamp; now (UTC) by default.
+
+    Returns
+    -------
+    Report
+
+    Raises
+    ------
+    ValueError
+        A Verification oscillator whose h/T exceeds 0.1, bad periods,
+        dampings or method (message from the core API).
+    """
+    method = resolve_method(settings.method)
+    unit = record.unit
+    length_unit = MATCHING_LENGTH_UNIT[unit]
+    to_unit = 1.0 / ACCELERATION_UNITS[unit]
+    to_length = 1.0 / LENGTH_UNITS[length_unit]
+    periods = np.asarray(settings.periods, dtype=np.float64)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # sub-steps are shown per oscillator on the Peaks sheet
+        spectrum = elastic_spectrum(
+            record, periods, settings.dampings, method, max_step_ratio=settings.max_step_ratio
+        )
+        peaks = [
+            linear_response(record, o.period, o.damping, method, max_step_ratio=settings.max_step_ratio)
+            for o in settings.oscillators
+        ]
+    check_period, check_damping, beta, gamma = _verification_oscillator(record, settings, method)
+    check = linear_response(record, check_period, check_damping, (beta, gamma), max_step_ratio=_VERIFY_STEP_RATIO)
+    layout = lay.result_layout(
+        record.n, periods.size, tuple(float(d) for d in spectrum.dampings), len(peaks), unit, length_unit
+    )
+
+    spectra: dict[str, Any] = {"period": spectrum.periods.tolist()}
+    key_results: dict[str, list[float]] = {k: [] for k in ("damping", "peak_psa", "peak_psa_period", "peak_sd", "peak_sd_period")}
+    for i, damping in enumerate(spectrum.dampings):
+        spectra[f"sd_{i}"] = (spectrum.sd[i] * to_length).tolist()
+        spectra[f"psv_{i}"] = (spectrum.psv[i] * to_length).tolist()
+        spectra[f"psa_{i}"] = (spectrum.psa[i] * to_unit).tolist()
+        spectra[f"sa_{i}"] = (spectrum.sa[i] * to_unit).tolist()
+        at_psa, at_sd = int(np.argmax(spectrum.psa[i])), int(np.argmax(spectrum.sd[i]))
+        key_results["damping"].append(float(damping))
+        key_results["peak_psa"].append(float(spectrum.psa[i, at_psa] * to_unit))
+        key_results["peak_psa_period"].append(float(spectrum.periods[at_psa]))
+        key_results["peak_sd"].append(float(spectrum.sd[i, at_sd] * to_length))
+        key_results["peak_sd_period"].append(float(spectrum.periods[at_sd]))
+
+    project = dict(settings.project)
+    unknown = set(project) - set(PROJECT_KEYS)
+    if unknown:
+        raise ValueError(f"`project` keys must be among {PROJECT_KEYS}, got {sorted(unknown)}")
+    arias = arias_intensity(record)
+    versions = _library_versions()
+    content: dict[str, dict[str, Any]] = {
+        "project": {key: project.get(key, "") for key in PROJECT_KEYS},
+        "record_summary": {
+            "record_name": record.name or "(unnamed)",
+            "samples": record.n,
+            "duration": record.duration,
+            "pga": record.pga * to_unit,
+            "pgv": float(np.max(np.abs(record.ground_velocity()))) * to_length,
+            "pgd": float(np.max(np.abs(record.ground_displacement()))) * to_length,
+            "arias": float(arias[-1]),
+            "significant_duration": significant_duration(record),
+        },
+        "key_results": key_results,
+        "check": {},
+        "record": {"record_unit": unit, "dt": record.dt, "unit_factor": ACCELERATION_UNITS[unit]},
+        "record_table": {
+            "time": record.time.tolist(),
+            "accel": record.accel_in(unit).tolist(),
+            "arias": normalised_arias(record).tolist(),
+        },
+        "spectra_table": spectra,
+        "peaks_table": {
+            "label": [o.label for o in settings.oscillators],
+            "period": [float(o.period) for o in settings.oscillators],
+            "damping": [float(o.damping) for o in settings.oscillators],
+            "sd": [r.peak_displacement * to_length for r in peaks],
+            "sv": [r.peak_velocity * to_length for r in peaks],
+            "sa": [r.peak_total_acceleration * to_unit for r in peaks],
+            "psv": [r.pseudo_velocity * to_length for r in peaks],
+            "psa": [r.pseudo_acceleration * to_unit for r in peaks],
+            "time_sd": [r.time_of_peak_displacement for r in peaks],
+            "time_sa": [r.time_of_peak_total_acceleration for r in peaks],
+            "substeps": [r.substeps for r in peaks],
+        },
+        "verification_inputs": {
+            "verification_period": check_period,
+            "verification_damping": check_damping,
+            "verification_beta": beta,
+            "verification_gamma": gamma,
+        },
+        "verification_constants": {},
+        "verification_check": {
+            "python_u": check.peak_displacement,
+            "python_v": check.peak_velocity,
+            "python_t": check.peak_total_acceleration,
+        },
+        "verification_steps": {},
+        "audit": {
+            "format": lay.FORMAT_ID,
+            "created": created or datetime.now(timezone.utc).isoformat(timespec="seconds"),
+            "command": command,
+            "groundstep_version": __version__,
+            "python_version": sys.version.split()[0],
+            "library_versions": versions,
+            "platform": platform.platform(),
+            "record_sha256": record.sha256(),
+            "record_source": source,
+            "caution": lay.CAUTION,
+        },
+        "settings": {
+            "method": method.name,
+            "method_description": method.describe(),
+            "beta": None if not method.is_newmark else method.beta,
+            "gamma": None if not method.is_newmark else method.gamma,
+            "max_step_ratio": settings.max_step_ratio,
+            "dampings": ", ".join(repr(float(d)) for d in spectrum.dampings),
+            "period_grid": f"{periods.size} periods, {periods.min():g} s to {periods.max():g} s (listed on {lay.SPECTRA})",
+        },
+    }
+    best = int(np.argmax(spectrum.psa.max(axis=0)))
+    row = int(np.argmax(spectrum.psa[:, best]))
+    headline = {
+        "pga": record.pga * to_unit,
+        "unit": unit,
+        "peak_psa": float(spectrum.psa[row, best] * to_unit),
+        "peak_psa_period": float(spectrum.periods[best]),
+        "peak_psa_damping": float(spectrum.dampings[row]),
+        "verification_period": check_period,
+        "verification_damping": check_damping,
+        "significant_duration": content["record_summary"]["significant_duration"],
+    }
+    return Report(layout, content, headline)
+
+
+def _verification_oscillator(record: Record, settings: ReportSettings, method) -> tuple[float, float, float, float]:
+    beta, gamma = (method.beta, method.gamma) if method.is_newmark else (0.25, 0.5)
+    period = settings.verification_period
+    damping = float(settings.verification_damping)
+    limit = record.dt / _VERIFY_STEP_RATIO
+    if period is None:
+        usable = [o for o in settings.oscillators if o.period >= limit]
+        if usable:
+            period, damping = float(usable[0].period), float(usable[0].damping)
+        else:
+            period = max(1.0, limit)
+    period = float(period)
+    if not period >= limit * (1.0 - 1e-12):
+        raise ValueError(
+            f"verification period {period!r} s is too short for the record step {record.dt!r} s: "
+            f"the sheet replays whole steps without sub-steps, so it needs T >= {limit:g} s (h/T <= 0.1)"
+        )
+    if not 0.0 <= damping < 1.0 or math.isnan(damping):
+        raise ValueError(f"verification damping must be a ratio in [0, 1), got {damping!r}")
+    return period, damping, float(beta), float(gamma)
+
+
+def _library_versions() -> str:
+    import numba
+    import openpyxl
+    import scipy
+
+    return f"{np.__version__} / {scipy.__version__} / {numba.__version__} / {openpyxl.__version__}"

@@ -1,0 +1,125 @@
+"""The result workbook written with openpyxl, driven by ``layout.py``.
+
+A workbook is always written new: openpyxl drops charts and pictures when it
+loads and saves a file, so a user's workbook is never loaded for writing.
+The file is written to a temporary name beside the target and moved into
+place with ``os.replace``.
+"""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from pathlib import Path
+from typing import Any, Sequence
+
+from openpyxl import Workbook
+from openpyxl.chart import Reference, ScatterChart, Series
+from openpyxl.styles import Font
+from openpyxl.workbook.defined_name import DefinedName
+
+from . import layout as lay
+from .report import Report
+from .report_render import SeriesRange, column_letter, render
+
+__all__ = ["OpenpyxlWriter", "write_report", "write_workbook_atomically"]
+
+_BOLD = Font(bold=True)
+
+
+class OpenpyxlWriter:
+    """`report_render.SheetWriter` into a new openpyxl ``Workbook``."""
+
+    def __init__(self) -> None:
+        self.book = Workbook()
+        self._first = True
+
+    def add_sheet(self, name: str) -> None:
+        if self._first:  # the new workbook's own empty sheet becomes the first of ours
+            self.book.active.title = name
+            self._first = False
+        else:
+            self.book.create_sheet(name)
+
+    def write_cells(self, sheet: str, row: int, column: int, values: Sequence[Sequence[Any]], number_format, bold) -> None:
+        ws = self.book[sheet]
+        for i, line in enumerate(values):
+            for j, value in enumerate(line):
+                cell = ws.cell(row=row + i, column=column + j, value=value)
+                if number_format:
+                    cell.number_format = number_format
+                if bold:
+                    cell.font = _BOLD
+
+    def define_name(self, name: str, sheet: str, reference: str) -> None:
+        self.book.defined_names[name] = DefinedName(name, attr_text=f"{sheet}!{reference}")
+
+    def set_column_width(self, sheet: str, column: int, width: float) -> None:
+        self.book[sheet].column_dimensions[column_letter(column)].width = width
+
+    def add_chart(self, sheet: str, chart: lay.Chart, x: SeriesRange, series) -> None:
+        ws = self.book[sheet]
+        plot = ScatterChart()
+        plot.title = chart.title
+        plot.style = 13
+        plot.x_axis.title = chart.x_title
+        plot.y_axis.title = chart.y_title
+        plot.width, plot.height = chart.width_cm, chart.height_cm
+        # openpyxl 3.1 hides axes unless told otherwise
+        plot.x_axis.delete = False
+        plot.y_axis.delete = False
+        if chart.log_x:
+            plot.x_axis.scaling.logBase = 10
+        x_ref = Reference(self.book[x.sheet], min_col=x.column, min_row=x.first_row, max_row=x.last_row)
+        for title, y in series:
+            y_ref = Reference(self.book[y.sheet], min_col=y.column, min_row=y.first_row, max_row=y.last_row)
+            line = Series(y_ref, x_ref, title=title)
+            line.marker.symbol = "none"
+            line.smooth = False
+            plot.series.append(line)
+        ws.add_chart(plot, f"{column_letter(chart.column)}{chart.row}")
+
+
+def write_report(report: Report, path: str | os.PathLike[str], *, force: bool = False) -> Path:
+    """Write `report` as a new .xlsx file at `path`.
+
+    Parameters
+    ----------
+    report : Report
+        From ``report.build_report``.
+    path : path-like
+        Output file; its folder must exist.
+    force : bool, default False
+        Replace an existing file.
+
+    Returns
+    -------
+    Path
+        The written file.
+
+    Raises
+    ------
+    FileExistsError
+        `path` exists and `force` is false.
+    """
+    writer = OpenpyxlWriter()
+    render(report.layout, report.content, writer)
+    return write_workbook_atomically(writer.book, path, force=force)
+
+
+def write_workbook_atomically(book: Workbook, path: str | os.PathLike[str], *, force: bool = False) -> Path:
+    """Save `book` to a temporary file beside `path`, then move it into place."""
+    target = Path(path)
+    if target.exists() and not force:
+        raise FileExistsError(f"output {str(target)!r} exists; pass --force to replace it")
+    if not target.parent.is_dir():
+        raise FileNotFoundError(f"output folder {str(target.parent)!r} does not exist")
+    handle, temporary = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=target.parent)
+    os.close(handle)
+    try:
+        book.save(temporary)
+        os.replace(temporary, target)
+    finally:
+        if os.path.exists(temporary):
+            os.remove(temporary)
+    return target
