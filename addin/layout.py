@@ -118,7 +118,10 @@ class FormulaColumn:
 
 @dataclass(frozen=True, slots=True)
 class FormulaTable:
-    """A table of formulas; ``{rr}`` refers to the same data row of table `source` on sheet `source_sheet`."""
+    """A table of formulas; ``{rr}`` refers to the same data row of table `source` on sheet `source_sheet`.
+
+    `checked`: ``verify`` compares every formula's text with the layout's.
+    """
 
     key: str
     title: str
@@ -128,6 +131,7 @@ class FormulaTable:
     rows: int
     source_sheet: str = ""
     source: str = ""
+    checked: bool = True
 
 
 @dataclass(frozen=True, slots=True)
@@ -281,6 +285,7 @@ def _record(n_samples, unit) -> Sheet:
             Column("arias", "Normalised Arias intensity (Arias 1970)", "-", FIXED4, 18.0),
         ),
         n_samples,
+        checked=True,
     )  # fmt: skip
     chart = Chart(
         "record_chart", "Ground acceleration", "record_table", "time", (("accel", "acceleration"),),
@@ -347,6 +352,7 @@ def _verification(n_samples) -> Sheet:
             Field("verification_gamma", "Newmark γ", "", GENERAL),
             Field("verification_dt", "Time step h (from the Record sheet)", "s", GENERAL),
             Field("verification_factor", "Unit to m/s² (from the Record sheet)", "", GENERAL),
+            Field("verification_tolerance", "Relative tolerance of the check", "", GENERAL),
         ),
         formulas=(
             ("verification_dt", f"={RECORD}!{{dt}}"),
@@ -354,7 +360,7 @@ def _verification(n_samples) -> Sheet:
         ),
     )  # fmt: skip
     constants = Fields(
-        "verification_constants", "Newmark constants (Newmark 1959)", 11, 1,
+        "verification_constants", "Newmark constants (Newmark 1959)", 12, 1,
         (
             Field("omega", "ω = 2π/T", "rad/s", GENERAL),
             Field("c", "c = 2ζω (per unit mass)", "1/s", GENERAL),
@@ -370,6 +376,7 @@ def _verification(n_samples) -> Sheet:
                             "+{verification_beta}*{verification_dt}^2*{k}"),
             ("step_ratio", "={verification_dt}/{verification_period}"),
         ),
+        checked=True,
     )  # fmt: skip
     peak = "=MAX(MAX({{verification_steps.{0}}}),-MIN({{verification_steps.{0}}}))"
     rel = "=ABS({{formula_{0}}}-{{python_{0}}})/MAX(ABS({{python_{0}}}),1E-300)"
@@ -383,11 +390,11 @@ def _verification(n_samples) -> Sheet:
             Field(f"rel_{quantity}", "relative difference", "", SCIENTIFIC),
         ]
         check_formulas += [(f"formula_{quantity}", peak.format(column)), (f"rel_{quantity}", rel.format(quantity))]
-    check_fields.append(Field("verification_overall", f"All within {VERIFY_TOLERANCE:g} relative"))
-    within = ",".join(f"{{rel_{q}}}<={VERIFY_TOLERANCE!r}" for q in "uvt")
+    check_fields.append(Field("verification_overall", "All within the tolerance"))
+    within = ",".join(f"{{rel_{q}}}<={{verification_tolerance}}" for q in "uvt")
     check_formulas.append(("verification_overall", f'=IF(AND({within}),"pass","FAIL")'))
     check = Fields(
-        "verification_check", "Check", 18, 1, tuple(check_fields), checked=True, formulas=tuple(check_formulas)
+        "verification_check", "Check", 19, 1, tuple(check_fields), checked=True, formulas=tuple(check_formulas)
     )  # the python_* values are checked by verify; formula cells are not
     a_prev = "{a}{q}"
     predictor_u = "{u}{q}+{verification_dt}*{v}{q}+{verification_dt}^2*(0.5-{verification_beta})*" + a_prev
@@ -428,7 +435,7 @@ def _audit() -> Sheet:
             Field("python_version", "Python", "", TEXT),
             Field("library_versions", "numpy / scipy / numba / openpyxl", "", TEXT),
             Field("platform", "Platform", "", TEXT),
-            Field("record_sha256", "Record SHA-256 (samples in own unit, unit, dt)", "", TEXT),
+            Field("record_sha256", "Record SHA-256 (samples as on the Record sheet, unit, dt)", "", TEXT),
             Field("record_source", "Record source", "", TEXT),
             Field("caution", "Caution", "", TEXT),
         ),

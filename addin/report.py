@@ -25,7 +25,7 @@ from groundstep.core.measures import arias_intensity, normalised_arias, signific
 
 from . import layout as lay
 
-__all__ = ["DEFAULT_DAMPINGS", "Oscillator", "Report", "ReportSettings", "build_report", "default_periods"]
+__all__ = ["DEFAULT_DAMPINGS", "Oscillator", "Report", "ReportSettings", "build_report", "default_periods", "stored_record"]
 
 #: Spectrum dampings when none are given: 2 %, 5 % and 10 % of critical are the
 #: values most often tabulated (common practice).
@@ -126,6 +126,7 @@ def build_report(
         dampings or method (message from the core API).
     """
     method = resolve_method(settings.method)
+    record = stored_record(record)
     unit = record.unit
     length_unit = MATCHING_LENGTH_UNIT[unit]
     to_unit = 1.0 / ACCELERATION_UNITS[unit]
@@ -205,6 +206,7 @@ def build_report(
             "verification_damping": check_damping,
             "verification_beta": beta,
             "verification_gamma": gamma,
+            "verification_tolerance": lay.VERIFY_TOLERANCE,
         },
         "verification_constants": {},
         "verification_check": {
@@ -248,6 +250,26 @@ def build_report(
         "significant_duration": content["record_summary"]["significant_duration"],
     }
     return Report(layout, content, headline)
+
+
+def stored_record(record: Record) -> Record:
+    """The record exactly as a workbook cell stores it.
+
+    Spreadsheet files keep 15 to 16 significant digits, and a sample in the
+    record's unit may need 17; the record is rounded to 16 digits (in its own
+    unit, negative zeros made positive) until that no longer changes it, so the Record sheet, the results
+    computed here and the SHA-256 on the Audit sheet all describe the same
+    samples. A record read from text (at most 15 digits) is returned as is.
+    """
+    current = record
+    for _ in range(6):  # 2-3 rounds suffice in practice
+        # + 0.0 turns -0.0 (written "-0", read back as 0) into 0.0
+        written = [float(f"{value:.16g}") + 0.0 for value in current.accel_in(current.unit)]
+        candidate = Record(written, record.dt, record.unit, name=record.name, header=record.header)
+        if candidate.accel.tobytes() == current.accel.tobytes():
+            return current
+        current = candidate
+    raise RuntimeError("the record's samples do not settle when rounded to 16 digits")
 
 
 def _verification_oscillator(record: Record, settings: ReportSettings, method) -> tuple[float, float, float, float]:

@@ -1,0 +1,253 @@
+"""Re-check a result workbook: recompute every result block from its stored record and settings.
+
+The record, its unit and time step, the spectrum periods and dampings, the
+method and the oscillators are read back through the workbook's defined
+names; ``report.build_report`` recomputes the content, ``report_render``
+lays it out in memory with the same layout, and every cell of every checked
+block is compared with the stored one (numbers to a relative tolerance,
+text and formulas exactly). The record's SHA-256 is compared with the one
+on the Audit sheet.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import warnings
+import zipfile
+from dataclasses import dataclass
+from typing import Any
+
+from groundstep.core import Record
+
+from . import layout as lay
+from .report import PROJECT_KEYS, Oscillator, ReportSettings, build_report
+from .report_render import CellRecorder, block_cells, column_letter, formula_fields, render_block
+
+__all__ = ["BlockCheck", "NotAResultWorkbook", "RELATIVE_TOLERANCE", "verify_workbook"]
+
+#: Relative tolerance for recomputed numbers. The workbook stores each float
+#: exactly (17 digits); the compiled spectrum kernel may sum in another order
+#: on another machine, which moves the last few of 16 digits only.
+RELATIVE_TOLERANCE = 1e-9
+
+
+class NotAResultWorkbook(ValueError):
+    """The file cannot be read as a groundstep result workbook."""
+
+
+@dataclass(frozen=True, slots=True)
+class BlockCheck:
+    """Outcome for one block: ``ok`` is False on any mismatch."""
+
+    sheet: str
+    block: str
+    title: str
+    ok: bool
+    cells: int
+    message: str
+
+    def line(self) -> str:
+        """One report line."""
+        return f"{'match   ' if self.ok else 'MISMATCH'}  {self.sheet} / {self.title}: {self.message}"
+
+
+def verify_workbook(path: str | os.PathLike[str]) -> list[BlockCheck]:
+    """Recompute every result block of a workbook and compare.
+
+    Parameters
+    ----------
+    path : path-like
+        A workbook written by ``groundstep`` (``demo``, ``fill`` or
+        ``spectrum --format xlsx``).
+
+    Returns
+    -------
+    list of BlockCheck
+        The record digest first, then one entry per checked block, then the
+        spreadsheet's own Verification result when the file carries
+        calculated values.
+
+    Raises
+    ------
+    NotAResultWorkbook
+        Not an .xlsx package, or no groundstep format mark on the Audit
+        sheet, or a stored record or setting that cannot be read (the
+        message names it).
+    """
+    import openpyxl
+
+    try:
+        book = openpyxl.load_workbook(path, data_only=False)
+    except (OSError, zipfile.BadZipFile, KeyError, ValueError) as exc:
+        raise NotAResultWorkbook(f"{os.fspath(path)!r} cannot be opened as an .xlsx workbook ({exc})") from None
+    reader = _Names(book)
+    mark = reader.value("format", required=False)
+    if mark != lay.FORMAT_ID:
+        raise NotAResultWorkbook(
+            f"{os.fspath(path)!r} is not a groundstep result workbook (no {lay.NAME_PREFIX}format "
+            f"cell holding {lay.FORMAT_ID!r}; found {mark!r})"
+        )
+    record, settings, audit = _read_inputs(reader)
+    checks = [_check_digest(record, audit["record_sha256"])]
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        report = build_report(record, settings, command=audit["command"], source=audit["record_source"])
+    addresses = formula_fields(report.layout)
+    for sheet in report.layout.sheets:
+        for block in sheet.blocks:
+            if not getattr(block, "checked", False):
+                continue
+            recorder = CellRecorder()
+            render_block(sheet, block, report.content.get(block.key, {}), recorder, addresses)
+            checks.append(_compare(book, sheet, block, recorder))
+    checks.append(_spreadsheet_result(path))
+    return [c for c in checks if c is not None]
+
+
+class _Names:
+    """Read values through the workbook's ``gs_`` defined names."""
+
+    def __init__(self, book) -> None:
+        self.book = book
+
+    def _cells(self, key: str):
+        defined = self.book.defined_names.get(lay.NAME_PREFIX + key)
+        if defined is None:
+            return None
+        sheet, reference = next(iter(defined.destinations))
+        if sheet not in self.book.sheetnames:
+            raise NotAResultWorkbook(f"name {lay.NAME_PREFIX}{key} points to a missing sheet {sheet!r}")
+        return self.book[sheet], reference.replace("$", ""), sheet
+
+    def value(self, key: str, *, required: bool = True) -> Any:
+        found = self._cells(key)
+        if found is None:
+            if required:
+                raise NotAResultWorkbook(f"the workbook has no cell named {lay.NAME_PREFIX}{key}")
+            return None
+        sheet, reference, _ = found
+        return sheet[reference].value
+
+    def column(self, key: str, *, required: bool = True) -> list[Any]:
+        found = self._cells(key)
+        if found is None:
+            if required:
+                raise NotAResultWorkbook(f"the workbook has no range named {lay.NAME_PREFIX}{key}")
+            return []
+        sheet, reference, _ = found
+        return [row[0].value for row in sheet[reference]]
+
+    def number(self, key: str) -> float:
+        value = self.value(key)
+        if isinstance(value, bool) or not isinstance(value, (int, float)):
+            raise NotAResultWorkbook(f"cell {lay.NAME_PREFIX}{key} should hold a number, holds {value!r}")
+        return float(value)
+
+    def numbers(self, key: str, *, required: bool = True) -> list[float]:
+        values = self.column(key, required=required)
+        for index, value in enumerate(values, start=1):
+            if isinstance(value, bool) or not isinstance(value, (int, float)):
+                raise NotAResultWorkbook(f"range {lay.NAME_PREFIX}{key} row {index} should hold a number, holds {value!r}")
+        return [float(v) for v in values]
+
+
+def _read_inputs(names: _Names) -> tuple[Record, ReportSettings, dict[str, str]]:
+    unit = names.value("record_unit")
+    try:
+        record = Record(names.numbers("record_table_accel"), names.number("dt"), unit, name=names.value("record_name") or "")
+    except (TypeError, ValueError) as exc:
+        raise NotAResultWorkbook(f"the stored record cannot be read: {exc}") from None
+    method: Any = names.value("method")
+    if method == "newmark":
+        method = (names.number("beta"), names.number("gamma"))
+    ratio = names.value("max_step_ratio")
+    try:
+        dampings = tuple(float(text) for text in str(names.value("dampings")).split(","))
+    except ValueError:
+        raise NotAResultWorkbook(f"cell {lay.NAME_PREFIX}dampings should list numbers, holds {names.value('dampings')!r}") from None
+    labels = names.column("peaks_table_label", required=False)
+    periods = names.numbers("peaks_table_period", required=False)
+    oscillator_dampings = names.numbers("peaks_table_damping", required=False)
+    settings = ReportSettings(
+        periods=tuple(names.numbers("spectra_table_period")),
+        dampings=dampings,
+        method=method,
+        max_step_ratio=None if ratio in (None, "") else float(ratio),
+        oscillators=tuple(
+            Oscillator("" if label is None else str(label), p, d) for label, p, d in zip(labels, periods, oscillator_dampings)
+        ),
+        verification_period=names.number("verification_period"),
+        verification_damping=names.number("verification_damping"),
+        project=tuple((key, names.value(key) or "") for key in PROJECT_KEYS),
+    )
+    audit = {key: str(names.value(key, required=False) or "") for key in ("record_sha256", "command", "record_source")}
+    return record, settings, audit
+
+
+def _check_digest(record: Record, stored: str) -> BlockCheck:
+    digest = record.sha256()
+    ok = digest == stored
+    message = (
+        f"SHA-256 of the stored samples, unit and time step matches the Audit sheet ({digest[:16]}...)"
+        if ok
+        else f"SHA-256 of the stored samples is {digest[:16]}..., the Audit sheet says {stored[:16] or '(blank)'}..."
+    )
+    return BlockCheck(lay.RECORD, "record_sha256", "record digest", ok, record.n, message)
+
+
+def _compare(book, sheet: lay.Sheet, block, recorder: CellRecorder) -> BlockCheck:
+    title = block.title
+    if sheet.name not in book.sheetnames:
+        return BlockCheck(sheet.name, block.key, title, False, 0, f"sheet {sheet.name!r} is missing")
+    stored_sheet = book[sheet.name]
+    positions = block_cells(sheet, block)
+    scale = max((abs(v) for p in positions if _is_number(v := recorder.cells.get((sheet.name, *p)))), default=0.0)
+    bad: list[str] = []
+    for row, column in positions:
+        expected = recorder.cells.get((sheet.name, row, column))
+        found = stored_sheet.cell(row=row, column=column).value
+        if not _same(found, expected, scale):
+            bad.append(f"{column_letter(column)}{row} holds {found!r}, recomputed {expected!r}")
+    if bad:
+        return BlockCheck(
+            sheet.name, block.key, title, False, len(positions),
+            f"{len(bad)} of {len(positions)} cells differ; first: {bad[0]}",
+        )  # fmt: skip
+    return BlockCheck(sheet.name, block.key, title, True, len(positions), f"{len(positions)} cells match")
+
+
+def _is_number(value: Any) -> bool:
+    return isinstance(value, (int, float)) and not isinstance(value, bool)
+
+
+def _same(found: Any, expected: Any, scale: float) -> bool:
+    if expected in (None, "") or found in (None, ""):
+        return expected in (None, "") and found in (None, "")
+    if _is_number(expected) and _is_number(found):
+        if isinstance(expected, int) and isinstance(found, int):
+            return found == expected
+        # relative to the value, with a floor of 1e-12 of the block's largest value for entries near 0
+        return math.isclose(found, expected, rel_tol=RELATIVE_TOLERANCE, abs_tol=1e-12 * scale)
+    return str(found) == str(expected)
+
+
+def _spreadsheet_result(path) -> BlockCheck | None:
+    """The Verification sheet's own pass/fail, when a spreadsheet has calculated and saved it."""
+    import openpyxl
+
+    book = openpyxl.load_workbook(path, data_only=True)
+    names = _Names(book)
+    status = names.value("verification_overall", required=False)
+    if status is None:
+        return BlockCheck(
+            lay.VERIFICATION, "verification_overall", "formula replay", True, 0,
+            "formulas not yet calculated in this file (open it in a spreadsheet to see pass/fail)",
+        )  # fmt: skip
+    ok = status == "pass"
+    return BlockCheck(
+        lay.VERIFICATION, "verification_overall", "formula replay", ok, 1,
+        f"the spreadsheet's last calculation says {status!r}",
+    )  # fmt: skip
+
+
