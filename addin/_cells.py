@@ -96,7 +96,7 @@ def positive(value: Any, what: str, unit: str = "") -> float:
 def nonnegative(value: Any, what: str, default: Any = _REQUIRED) -> float:
     """One number that must be >= 0 (a period [s], a hardening ratio, ...)."""
     result = number(value, what, default)
-    if result < 0.0:
+    if result is not None and result < 0.0:
         raise CellError(f"{what} must be >= 0, got {result:g}")
     return result
 

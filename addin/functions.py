@@ -26,6 +26,7 @@ from __future__ import annotations
 
 import functools
 import math
+import threading
 import warnings
 from collections.abc import Callable
 from typing import Any, NamedTuple
@@ -65,9 +66,10 @@ ERROR_PREFIX = "STEP error: "
 #: Shown by STEP_ABOUT and on every template.
 CAUTION = "Results support, not replace, engineering judgement; local codes and licensed practice govern."
 
-# Sub-stepping is reported through STEP_ABOUT and the "substeps" quantity, so
-# the core's SubstepWarning is silenced for calls made from this module only.
-warnings.filterwarnings("ignore", category=SubstepWarning, module=r"groundstep\.addin\.functions")
+# Sub-stepping is reported through STEP_ABOUT and the "substeps" quantity, so the
+# core's SubstepWarning is silenced around each core call (see `_quiet`). Warning
+# filters are process-wide, so those calls take turns under this lock.
+_WARNINGS_LOCK = threading.Lock()
 
 Cell = Any  # a value as the spreadsheet passes it: number, text, bool, None or nested lists
 
@@ -141,7 +143,7 @@ def STEP_PEAK(
     oscillator = (_cells.nonnegative(period, "the period"), _cells.damping(damping, "the damping"))
     resolved = _method(method)
     peaks = _cache.RESULTS.get_or_compute(
-        ("peak", key, oscillator, _method_key(resolved)), lambda: _peaks(record, *oscillator, resolved)
+        ("peak", key, oscillator, _method_key(resolved)), lambda: _summary(_quiet(linear_response, record, *oscillator, resolved), _PEAK_QUANTITIES)
     )
     return _to_unit(peaks[attribute], kind, units)
 
@@ -178,7 +180,7 @@ def STEP_SPECTRUM(
     resolved = _method(method)
     spectrum = _cache.RESULTS.get_or_compute(
         ("spectrum", key, *(tuple(values.tolist()) for values in grid), _method_key(resolved)),
-        lambda: elastic_spectrum(record, *grid, resolved),
+        lambda: _quiet(elastic_spectrum, record, *grid, resolved),
     )
     table = _to_unit(getattr(spectrum, attribute), kind, units).T
     corner = f"{_label(name, kind, units)}: T [s] down, damping across"
@@ -214,7 +216,7 @@ def STEP_HISTORY(
     resolved = _method(method)
     response = _cache.HISTORIES.get_or_compute(
         ("history", key, oscillator, _method_key(resolved)),
-        lambda: linear_response(record, *oscillator, resolved),
+        lambda: _quiet(linear_response, record, *oscillator, resolved),
     )
     columns = np.column_stack(
         [
@@ -271,7 +273,7 @@ def STEP_DUCTILITY(
     result = _cache.RESULTS.get_or_compute(
         ("ductility", key, oscillator, strength, slope, _method_key(resolved)),
         lambda: _summary(
-            inelastic_response(record, *oscillator, hardening=slope, method=resolved, **strength._asdict()),
+            _quiet(inelastic_response, record, *oscillator, hardening=slope, method=resolved, **strength._asdict()),
             _DUCTILITY_QUANTITIES,
         ),
     )
@@ -315,7 +317,7 @@ def STEP_DUCTILITY_SPECTRUM(
     slope = _cells.nonnegative(hardening, "the hardening", 0.0)
     spectrum = _cache.RESULTS.get_or_compute(
         ("ductility spectrum", key, *(tuple(values.tolist()) for values in grid), ratio, slope),
-        lambda: ductility_spectrum(record, *grid, ratio, slope),
+        lambda: _quiet(ductility_spectrum, record, *grid, ratio, slope),
     )
     table = _to_unit(np.asarray(getattr(spectrum, attribute)), kind, units).T
     corner = f"{_label(name, kind, units)}: T [s] down, ductility across"
@@ -514,9 +516,11 @@ def _table(values: np.ndarray, rows: np.ndarray, columns: np.ndarray, corner: st
     return [[corner, *columns.tolist()], *([row, *line] for row, line in zip(rows.tolist(), body))]
 
 
-def _peaks(record: Record, period: float, damping: float, method: Method) -> dict[str, float]:
-    response = linear_response(record, period, damping, method)
-    return _summary(response, _PEAK_QUANTITIES)
+def _quiet(compute: Callable[..., Any], *args: Any, **kwargs: Any) -> Any:
+    """Call a core function with its SubstepWarning silenced."""
+    with _WARNINGS_LOCK, warnings.catch_warnings():
+        warnings.simplefilter("ignore", SubstepWarning)
+        return compute(*args, **kwargs)
 
 
 def _summary(result: Any, table: dict[str, tuple[str, str, str]]) -> dict[str, float]:
