@@ -25,7 +25,7 @@ from groundstep.core.measures import arias_intensity, normalised_arias, signific
 
 from . import layout as lay
 
-__all__ = ["DEFAULT_DAMPINGS", "Oscillator", "Report", "ReportSettings", "build_report", "default_periods", "stored_record"]
+__all__ = ["DEFAULT_DAMPINGS", "Oscillator", "Report", "ReportSettings", "build_report", "default_periods", "spectrum_table", "stored_record"]
 
 #: Spectrum dampings when none are given: 2 %, 5 % and 10 % of critical are the
 #: values most often tabulated (common practice).
@@ -147,19 +147,18 @@ def build_report(
         record.n, periods.size, tuple(float(d) for d in spectrum.dampings), len(peaks), unit, length_unit
     )
 
-    spectra: dict[str, Any] = {"period": spectrum.periods.tolist()}
+    table = spectrum_table(record, spectrum)
+    spectra: dict[str, Any] = {"period": table["periods"]}
     key_results: dict[str, list[float]] = {k: [] for k in ("damping", "peak_psa", "peak_psa_period", "peak_sd", "peak_sd_period")}
-    for i, damping in enumerate(spectrum.dampings):
-        spectra[f"sd_{i}"] = (spectrum.sd[i] * to_length).tolist()
-        spectra[f"psv_{i}"] = (spectrum.psv[i] * to_length).tolist()
-        spectra[f"psa_{i}"] = (spectrum.psa[i] * to_unit).tolist()
-        spectra[f"sa_{i}"] = (spectrum.sa[i] * to_unit).tolist()
+    for i, damping in enumerate(table["dampings"]):
+        for quantity in ("sd", "psv", "psa", "sa"):
+            spectra[f"{quantity}_{i}"] = table[quantity][i]
         at_psa, at_sd = int(np.argmax(spectrum.psa[i])), int(np.argmax(spectrum.sd[i]))
-        key_results["damping"].append(float(damping))
-        key_results["peak_psa"].append(float(spectrum.psa[i, at_psa] * to_unit))
-        key_results["peak_psa_period"].append(float(spectrum.periods[at_psa]))
-        key_results["peak_sd"].append(float(spectrum.sd[i, at_sd] * to_length))
-        key_results["peak_sd_period"].append(float(spectrum.periods[at_sd]))
+        key_results["damping"].append(damping)
+        key_results["peak_psa"].append(table["psa"][i][at_psa])
+        key_results["peak_psa_period"].append(table["periods"][at_psa])
+        key_results["peak_sd"].append(table["sd"][i][at_sd])
+        key_results["peak_sd_period"].append(table["periods"][at_sd])
 
     project = dict(settings.project)
     unknown = set(project) - set(PROJECT_KEYS)
@@ -250,6 +249,24 @@ def build_report(
         "significant_duration": content["record_summary"]["significant_duration"],
     }
     return Report(layout, content, headline)
+
+
+def spectrum_table(record: Record, spectrum) -> dict[str, Any]:
+    """Spectra as plain lists in the record's units: SD in the matching length unit, PSV in it per
+    second, PSA and SA in the record's acceleration unit (``units`` names them)."""
+    unit = record.unit
+    length_unit = MATCHING_LENGTH_UNIT[unit]
+    to_unit = 1.0 / ACCELERATION_UNITS[unit]
+    to_length = 1.0 / LENGTH_UNITS[length_unit]
+    return {
+        "periods": spectrum.periods.tolist(),
+        "dampings": [float(d) for d in spectrum.dampings],
+        "sd": (spectrum.sd * to_length).tolist(),
+        "psv": (spectrum.psv * to_length).tolist(),
+        "psa": (spectrum.psa * to_unit).tolist(),
+        "sa": (spectrum.sa * to_unit).tolist(),
+        "units": {"sd": length_unit, "psv": f"{length_unit}/s", "psa": unit, "sa": unit},
+    }
 
 
 def stored_record(record: Record) -> Record:

@@ -1,0 +1,190 @@
+"""``groundstep spectrum``: many record files, parallel worker processes, a progress display.
+
+Each job reads one text/CSV record (``Record.from_text``), computes its
+elastic spectra and writes CSV, JSON or a result workbook. Jobs run in
+``concurrent.futures`` worker processes (each limited to one numba thread,
+so N workers use N cores); a failed file is reported and the others go on.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import os
+import sys
+import tempfile
+import warnings
+from concurrent.futures import ProcessPoolExecutor, as_completed
+from pathlib import Path
+from typing import Sequence
+
+from . import layout as lay
+from .report import ReportSettings
+
+__all__ = ["plan_outputs", "run_batch", "spectrum_job"]
+
+
+def plan_outputs(records: Sequence[str], out_dir: Path, fmt: str) -> list[tuple[Path, Path]]:
+    """(input, output) pairs: ``OUT_DIR/STEM.spectrum.FMT``; duplicate stems are refused."""
+    if not out_dir.is_dir():
+        raise FileNotFoundError(f"output folder {str(out_dir)!r} does not exist")
+    jobs: list[tuple[Path, Path]] = []
+    seen: dict[Path, Path] = {}
+    for name in records:
+        source = Path(name)
+        if not source.is_file():
+            raise FileNotFoundError(f"record file {name!r} does not exist")
+        target = out_dir / f"{source.stem}.spectrum.{fmt}"
+        if target in seen:
+            raise ValueError(f"{name!r} and {str(seen[target])!r} would both write {str(target)!r}; rename one")
+        seen[target] = source
+        jobs.append((source, target))
+    return jobs
+
+
+def spectrum_job(
+    source: Path, target: Path, settings: ReportSettings, dt: float | None, unit: str, time_column: bool | None, command: str
+) -> str:
+    """Read one record, compute, write `target`; return a one-line summary."""
+    from groundstep.core import Record, elastic_spectrum
+
+    from .report import build_report, spectrum_table
+    from .workbook import write_report
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        record = Record.from_text(source, dt, unit, time_column=time_column)
+        if target.suffix == ".xlsx":
+            report = build_report(record, settings, command=command, source=source.name)
+            write_report(report, target, force=True)
+            h = report.headline
+            return f"PGA {h['pga']:.4g} {h['unit']}, largest PSA {h['peak_psa']:.4g} {h['unit']} at {h['peak_psa_period']:.3g} s"
+        spectrum = elastic_spectrum(
+            record, settings.periods, settings.dampings, settings.method, max_step_ratio=settings.max_step_ratio
+        )
+    table = spectrum_table(record, spectrum)
+    if target.suffix == ".json":
+        text = json.dumps(
+            {
+                "record": record.name,
+                "unit": record.unit,
+                "dt": record.dt,
+                "samples": record.n,
+                "sha256": record.sha256(),
+                "method": spectrum.method,
+                "beta": None if spectrum.method == "exact" else spectrum.beta,
+                "gamma": None if spectrum.method == "exact" else spectrum.gamma,
+                "max_step_ratio": settings.max_step_ratio,
+                "units": table["units"],
+                "periods": table["periods"],
+                "dampings": table["dampings"],
+                **{q: table[q] for q in ("sd", "psv", "psa", "sa")},
+                "caution": lay.CAUTION,
+            },
+            indent=1,
+        )
+    else:
+        buffer = io.StringIO()
+        writer = csv.writer(buffer, lineterminator="\n")
+        header = ["period [s]"]
+        for damping in table["dampings"]:
+            header += [f"{q.upper()} zeta={damping:g} [{table['units'][q]}]" for q in ("sd", "psv", "psa", "sa")]
+        writer.writerow(header)
+        for j, period in enumerate(table["periods"]):
+            row = [repr(period)]
+            for i in range(len(table["dampings"])):
+                row += [repr(table[q][i][j]) for q in ("sd", "psv", "psa", "sa")]
+            writer.writerow(row)
+        text = buffer.getvalue()
+    _write_text_atomically(target, text)
+    best = max(max(row) for row in table["psa"])
+    return f"PGA {record.pga / _factor(record.unit):.4g} {record.unit}, largest PSA {best:.4g} {record.unit}"
+
+
+def run_batch(
+    jobs: Sequence[tuple[Path, Path]],
+    settings: ReportSettings,
+    *,
+    dt: float | None,
+    unit: str,
+    time_column: bool | None,
+    workers: int,
+    command: str,
+    progress: bool = True,
+) -> list[tuple[str, str]]:
+    """Run every job; return (input, error message) of the failures."""
+    bar = _Progress(len(jobs), progress)
+    failures: list[tuple[str, str]] = []
+    if workers == 1 or len(jobs) == 1:
+        for source, target in jobs:
+            try:
+                summary = spectrum_job(source, target, settings, dt, unit, time_column, command)
+                bar.step(source.name, summary)
+            except (ValueError, TypeError, OSError) as exc:
+                failures.append((str(source), str(exc)))
+                bar.step(source.name, "failed")
+        bar.close()
+        return failures
+    with ProcessPoolExecutor(max_workers=min(workers, len(jobs)), initializer=_one_thread) as pool:
+        futures = {
+            pool.submit(spectrum_job, source, target, settings, dt, unit, time_column, command): source
+            for source, target in jobs
+        }
+        for future in as_completed(futures):
+            source = futures[future]
+            try:
+                bar.step(source.name, future.result())
+            except (ValueError, TypeError, OSError) as exc:
+                failures.append((str(source), str(exc)))
+                bar.step(source.name, "failed")
+    bar.close()
+    return failures
+
+
+def _one_thread() -> None:
+    """Worker start-up: one numba thread per process, so the processes share the cores."""
+    import numba
+
+    numba.set_num_threads(1)
+
+
+def _factor(unit: str) -> float:
+    from groundstep.core._units import ACCELERATION_UNITS
+
+    return ACCELERATION_UNITS[unit]
+
+
+def _write_text_atomically(target: Path, text: str) -> None:
+    handle, temporary = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=target.parent)
+    try:
+        with os.fdopen(handle, "w", encoding="utf-8", newline="") as stream:
+            stream.write(text)
+        os.replace(temporary, target)
+    finally:
+        if os.path.exists(temporary):
+            os.remove(temporary)
+
+
+class _Progress:
+    """A progress bar on stderr when it is a terminal; one line per file otherwise."""
+
+    def __init__(self, total: int, enabled: bool) -> None:
+        self.total, self.done, self.enabled = total, 0, enabled
+        self.tty = enabled and sys.stderr.isatty()
+
+    def step(self, name: str, summary: str) -> None:
+        self.done += 1
+        if not self.enabled:
+            return
+        if self.tty:
+            filled = int(30 * self.done / self.total)
+            sys.stderr.write(f"\r[{'#' * filled}{'.' * (30 - filled)}] {self.done}/{self.total} {name[:40]:<40}")
+        else:
+            sys.stderr.write(f"[{self.done}/{self.total}] {name}: {summary}\n")
+        sys.stderr.flush()
+
+    def close(self) -> None:
+        if self.tty:
+            sys.stderr.write("\n")
+            sys.stderr.flush()

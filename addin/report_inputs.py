@@ -1,0 +1,227 @@
+"""Read a record and settings from an input workbook (``groundstep fill`` and the live macro).
+
+An input workbook is only read, never written: the file's bytes are read
+into memory and openpyxl loads that copy. Cells are found through defined
+names (the calculation-package template's input cells) or through an
+explicit ``SHEET!RANGE`` for the record. Every cell is checked by the
+worksheet-function entrance (``_cells``), so messages are the same as in the
+worksheet functions and name the range and row.
+"""
+
+from __future__ import annotations
+
+import io
+import os
+import re
+from pathlib import Path
+from typing import Any, Callable
+
+from groundstep.core import Record
+from groundstep.core._units import ACCELERATION_UNITS
+
+from . import _cells
+from .report import PROJECT_KEYS, Oscillator, ReportSettings
+
+__all__ = ["INPUT_NAMES", "InputError", "read_input_workbook", "settings_from_cells", "split_reference"]
+
+#: Defined names looked up in an input workbook, first found wins. The
+#: calculation-package template's names come first; ``gs_in_*`` names may be
+#: added to any workbook by hand.
+INPUT_NAMES: dict[str, tuple[str, ...]] = {
+    "record": ("StepAccel", "gs_in_record"),
+    "dt": ("StepDt", "gs_in_dt"),
+    "unit": ("StepUnit", "gs_in_unit"),
+    "periods": ("StepPeriods", "gs_in_periods"),
+    "dampings": ("StepDampings", "gs_in_dampings"),
+    "method": ("StepMethod", "gs_in_method"),
+    "oscillator_periods": ("StepPeakPeriods", "gs_in_oscillator_periods"),
+    "oscillator_dampings": ("StepPeakDampings", "gs_in_oscillator_dampings"),
+    "oscillator_labels": ("StepPeakLabels", "gs_in_oscillator_labels"),
+    "project": ("StepProject", "gs_in_project"),
+    "site": ("StepSite", "gs_in_site"),
+    "structure": ("StepStructure", "gs_in_structure"),
+    "engineer": ("StepEngineer", "gs_in_engineer"),
+    "scenario": ("StepScenario", "gs_in_scenario"),
+}
+
+_REFERENCE = re.compile(r"^(?:'((?:[^']|'')+)'|([^!]+))!(\$?[A-Za-z]{1,3}\$?\d+(?::\$?[A-Za-z]{1,3}\$?\d+)?)$")
+
+Getter = Callable[[str], Any]
+
+
+class InputError(ValueError):
+    """The input workbook or an option does not give a usable record or setting."""
+
+
+def split_reference(reference: str) -> tuple[str, str]:
+    """``'My sheet'!B2:B20`` -> (``My sheet``, ``B2:B20``).
+
+    Raises
+    ------
+    InputError
+        Not of the form SHEET!RANGE.
+    """
+    match = _REFERENCE.match(reference.strip())
+    if not match:
+        raise InputError(f"--record {reference!r} is not SHEET!RANGE, e.g. Input!B2:B4001 or 'My data'!C5:C900")
+    sheet = match.group(1).replace("''", "'") if match.group(1) else match.group(2)
+    return sheet, match.group(3).replace("$", "")
+
+
+def settings_from_cells(
+    get: Getter,
+    *,
+    record_values: Any = None,
+    dt: float | None = None,
+    unit: str | None = None,
+    source: str = "",
+    base: ReportSettings | None = None,
+) -> tuple[Record, ReportSettings]:
+    """Build the record and settings from cell values.
+
+    Parameters
+    ----------
+    get : callable
+        ``get(key)`` returns the cells of input `key` (see `INPUT_NAMES`)
+        as a spreadsheet passes them, or None when the workbook lacks it.
+    record_values, dt, unit
+        Override the workbook's record range, time step [s] and unit.
+    source : str
+        Label of the record (file and range).
+    base : ReportSettings, optional
+        Settings used where the workbook is silent.
+    """
+    base = base or ReportSettings()
+    values = record_values if record_values is not None else get("record")
+    if values is None:
+        raise InputError(
+            "the workbook has no named acceleration range (StepAccel); pass --record SHEET!RANGE"
+        )
+    accel = _cells.numbers(values, "the acceleration range", 2)
+    if dt is None:
+        cell = get("dt")
+        if cell is None:
+            raise InputError("the workbook has no named time-step cell (StepDt); pass --dt SECONDS")
+        dt = _cells.positive(cell, "the time-step cell", "s")
+    if unit is None:
+        cell = get("unit")
+        unit = "g" if cell is None else _cells.unit(cell, "the unit cell", ACCELERATION_UNITS, "g")
+    record = Record(accel, dt, unit, name=source)
+
+    periods = get("periods")
+    dampings = get("dampings")
+    method = get("method")
+    labels, osc_periods, osc_dampings = get("oscillator_labels"), get("oscillator_periods"), get("oscillator_dampings")
+    oscillators = base.oscillators
+    if osc_periods is not None:
+        found = _cells.periods(osc_periods, "the oscillator periods")
+        ratios = (
+            _cells.dampings(osc_dampings, "the oscillator dampings") if osc_dampings is not None else [0.05] * len(found)
+        )
+        if len(ratios) != len(found):
+            raise InputError(f"{len(found)} oscillator periods but {len(ratios)} dampings")
+        names = _labels(labels, len(found))
+        oscillators = tuple(Oscillator(n, float(p), float(d)) for n, p, d in zip(names, found, ratios))
+    project = []
+    for key in PROJECT_KEYS:
+        cell = get(key)
+        if cell is not None:
+            project.append((key, _cells.text(cell, f"the {key} cell", "")))
+    settings = ReportSettings(
+        periods=tuple(float(p) for p in _cells.periods(periods, "the period range")) if periods is not None else base.periods,
+        dampings=tuple(float(d) for d in _cells.dampings(dampings, "the damping range"))
+        if dampings is not None
+        else base.dampings,
+        method=_cells.method(method, "the method cell", "average") if method is not None else base.method,
+        max_step_ratio=base.max_step_ratio,
+        oscillators=oscillators,
+        verification_period=base.verification_period,
+        verification_damping=base.verification_damping,
+        project=tuple(project) or base.project,
+    )
+    return record, settings
+
+
+def read_input_workbook(
+    path: str | os.PathLike[str],
+    *,
+    record: str | None = None,
+    dt: float | None = None,
+    unit: str | None = None,
+    base: ReportSettings | None = None,
+) -> tuple[Record, ReportSettings, str]:
+    """Record and settings from an input workbook, which is left untouched.
+
+    Parameters
+    ----------
+    path : path-like
+        An .xlsx file (a filled template, or any workbook with `record`).
+    record : str, optional
+        ``SHEET!RANGE`` of the acceleration column; else the named range.
+    dt, unit : optional
+        Time step [s] and unit, overriding the named cells.
+    base : ReportSettings, optional
+        Settings where the workbook is silent.
+
+    Returns
+    -------
+    (Record, ReportSettings, source)
+
+    Raises
+    ------
+    InputError, _cells.CellError
+        Missing or bad cells, named with the range and row.
+    """
+    import openpyxl
+
+    file = Path(path)
+    if not file.is_file():
+        raise InputError(f"input workbook {str(file)!r} does not exist")
+    try:
+        book = openpyxl.load_workbook(io.BytesIO(file.read_bytes()), data_only=True)
+    except Exception as exc:  # openpyxl raises several kinds for a file that is not .xlsx
+        raise InputError(f"{str(file)!r} cannot be read as an .xlsx workbook ({type(exc).__name__}: {exc})") from None
+
+    def cells(sheet_name: str, reference: str) -> Any:
+        if sheet_name not in book.sheetnames:
+            raise InputError(f"{file.name}: no sheet {sheet_name!r}; the sheets are {book.sheetnames}")
+        found = book[sheet_name][reference]
+        if not isinstance(found, tuple):
+            return found.value
+        if found and not isinstance(found[0], tuple):  # one row or one column given as A1:A1 style
+            found = (found,)
+        return [[cell.value for cell in row] for row in found]
+
+    def get(key: str) -> Any:
+        for name in INPUT_NAMES[key]:
+            defined = book.defined_names.get(name)
+            if defined is None:
+                for sheet in book.worksheets:  # names scoped to a sheet
+                    defined = sheet.defined_names.get(name)
+                    if defined is not None:
+                        break
+            if defined is not None:
+                sheet_name, reference = next(iter(defined.destinations))
+                return cells(sheet_name, reference.replace("$", ""))
+        return None
+
+    source = file.name
+    record_values = None
+    if record is not None:
+        sheet_name, reference = split_reference(record)
+        record_values = cells(sheet_name, reference)
+        source = f"{file.name} {sheet_name}!{reference}"
+    rec, settings = settings_from_cells(get, record_values=record_values, dt=dt, unit=unit, source=source, base=base)
+    return rec, settings, source
+
+
+def _labels(labels: Any, count: int) -> list[str]:
+    if labels is None:
+        return [f"Oscillator {i}" for i in range(1, count + 1)]
+    cells = [cell for _, cell in _cells._line(labels, "the oscillator labels")]
+    texts = ["" if c is None else str(c).strip() for c in cells]
+    while texts and not texts[-1]:
+        texts.pop()
+    texts = texts[-count:] if len(texts) > count else texts  # a header label above the list is dropped
+    return [texts[i] if i < len(texts) and texts[i] else f"Oscillator {i + 1}" for i in range(count)]
+
