@@ -164,7 +164,9 @@ def _column_range(sheet: str, block, key: str) -> SeriesRange:
 
 
 def _safe(value: Any) -> Any:
-    """Text that starts with '=' gets a leading space: shown as text, never run as a formula."""
+    """Empty text becomes a blank cell; text starting with '=' gets a leading space (text, not a formula)."""
+    if value == "":
+        return None
     if isinstance(value, str) and value.startswith("="):
         return " " + value
     return value
