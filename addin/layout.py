@@ -158,12 +158,13 @@ class Chart:
 
 @dataclass(frozen=True, slots=True)
 class Sheet:
-    """One worksheet: its blocks in writing order and its charts."""
+    """One worksheet: title in A1, `note` in A2, its blocks in writing order and its charts."""
 
     name: str
     title: str
     blocks: tuple[Fields | Table | FormulaTable, ...]
     charts: tuple[Chart, ...] = ()
+    note: str = ""
 
 
 @dataclass(frozen=True, slots=True)
@@ -265,7 +266,7 @@ def _summary(dampings, unit, length_unit, velocity_unit) -> Sheet:
         (Field("check_status", "Verification sheet (formulas replaying the recurrence)"),),
         formulas=(("check_status", f"={VERIFICATION}!{{verification_overall}}"),),
     )  # fmt: skip
-    return Sheet(SUMMARY, "groundstep result workbook", (project, record, key, check))
+    return Sheet(SUMMARY, "groundstep result workbook", (project, record, key, check), note=CAUTION)
 
 
 def _record(n_samples, unit) -> Sheet:

@@ -68,6 +68,8 @@ def render(workbook: lay.WorkbookLayout, content: dict[str, dict[str, Any]], wri
     for sheet in workbook.sheets:
         writer.add_sheet(sheet.name)
         writer.write_cells(sheet.name, 1, 1, [[sheet.title]], None, True)
+        if sheet.note:
+            writer.write_cells(sheet.name, 2, 1, [[sheet.note]], None, True)
         for block in sheet.blocks:
             render_block(sheet, block, content.get(block.key, {}), writer, addresses)
             _define_names(sheet, block, writer)
