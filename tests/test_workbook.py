@@ -86,9 +86,9 @@ def test_verification_sheet_holds_the_recurrence_as_formulas(made):
     record, _, report, path = made
     ws = openpyxl.load_workbook(path)["Verification"]
     rows = range(lay.RECORD_FIRST_ROW, lay.RECORD_FIRST_ROW + record.n)
-    formulas = [ws.cell(row=r, column=10).value for r in rows]  # the u column
+    formulas = [ws.cell(row=r, column=9).value for r in rows]  # the u column (I)
     assert all(isinstance(f, str) and f.startswith("=") for f in formulas)
-    assert f"J{lay.RECORD_FIRST_ROW}" in formulas[1]  # row i uses row i-1
+    assert f"I{lay.RECORD_FIRST_ROW}" in formulas[1]  # row i uses row i-1
     inputs = report.content["verification_inputs"]
     assert (inputs["verification_beta"], inputs["verification_gamma"]) == (0.25, 0.5)
     direct = linear_response(stored_record(record), inputs["verification_period"], inputs["verification_damping"])
