@@ -1,0 +1,243 @@
+"""Tests of the groundstep command line: commands, exit codes, messages, files."""
+
+from __future__ import annotations
+
+import csv
+import hashlib
+import json
+import os
+import shutil
+import subprocess
+import sys
+import warnings
+
+import numpy as np
+import openpyxl
+import pytest
+from numpy.testing import assert_allclose
+
+from groundstep.addin import layout as lay
+from groundstep.addin.cli import main
+from groundstep.core import Record, elastic_spectrum
+from groundstep.core.synthetic import synthetic_record
+
+COMMANDS = ["demo", "fill", "spectrum", "verify", "templates", "warm"]
+
+
+def _run(*args, cwd=None):
+    """`python -m groundstep.addin ARGS` in a subprocess."""
+    return subprocess.run(
+        [sys.executable, "-m", "groundstep.addin", *map(str, args)], capture_output=True, text=True, cwd=cwd, timeout=600
+    )
+
+
+@pytest.fixture(scope="module")
+def demo(tmp_path_factory):
+    """The demo workbook made end to end by `python -m groundstep.addin demo OUT`."""
+    out = tmp_path_factory.mktemp("demo") / "demo.xlsx"
+    result = _run("demo", out)
+    return out, result
+
+
+def test_demo_runs_end_to_end(demo):
+    """demo exits 0, writes the workbook and prints where, the peak PSA and the caution."""
+    out, result = demo
+    assert result.returncode == 0, result.stderr
+    assert out.is_file()
+    assert f"wrote {out}" in result.stdout
+    assert "largest PSA" in result.stdout and "PGA 0.3 g" in result.stdout
+    assert lay.CAUTION in result.stdout
+    book = openpyxl.load_workbook(out)
+    assert "Kessel Flats" in str(book["Summary"]["B6"].value)  # the invented site
+
+
+def test_demo_refuses_to_overwrite_without_force(demo, capsys):
+    """A second demo into the same file exits 2 with one line; --force replaces it."""
+    out, _ = demo
+    before = out.read_bytes()
+    assert main(["demo", str(out)]) == 2
+    err = capsys.readouterr().err
+    assert err.strip().count("\n") == 0 and "exists; pass --force to replace it" in err
+    assert out.read_bytes() == before
+    assert main(["demo", str(out), "--force", "--seed", "7"]) == 0
+
+
+@pytest.mark.parametrize("command", COMMANDS)
+def test_help_everywhere(command, capsys):
+    """`groundstep COMMAND --help` exits 0 and documents the exit codes and the caution."""
+    with pytest.raises(SystemExit) as stop:
+        main([command, "--help"])
+    assert stop.value.code == 0
+    text = capsys.readouterr().out
+    assert "exit codes" in text and "Results support, not replace" in text
+
+
+def test_top_level_help_lists_every_command(capsys):
+    """`groundstep --help` names all six commands."""
+    with pytest.raises(SystemExit):
+        main(["--help"])
+    text = capsys.readouterr().out
+    assert all(command in text for command in COMMANDS)
+
+
+def test_verify_exit_codes(demo, tmp_path, capsys):
+    """verify: 0 on the fresh demo, 1 naming the block after one result cell changes, 2 for other files."""
+    out, _ = demo
+    assert main(["verify", str(out)]) == 0
+    assert "checks match" in capsys.readouterr().out
+    copy = tmp_path / "edited.xlsx"
+    shutil.copy(out, copy)
+    book = openpyxl.load_workbook(copy)
+    book["Peaks"]["F6"].value = 123  # SA of the second oscillator
+    book.save(copy)
+    assert main(["verify", str(copy)]) == 1
+    report = capsys.readouterr().out
+    assert "MISMATCH  Peaks / Peak response of the oscillators: 1 of 55 cells differ; first: F6 holds 123, recomputed" in report
+    other = tmp_path / "other.xlsx"
+    openpyxl.Workbook().save(other)
+    assert main(["verify", str(other)]) == 2
+    assert "is not a groundstep result workbook" in capsys.readouterr().err
+    assert main(["verify", str(tmp_path / "missing.xlsx")]) == 2
+
+
+def _input_book(path, record, header="accel [g]"):
+    book = openpyxl.Workbook()
+    ws = book.active
+    ws.title = "Ground motion"
+    ws["A1"], ws["B1"] = "time", header
+    for i, value in enumerate(record.accel_in(record.unit).tolist(), start=2):
+        ws.cell(row=i, column=1, value=(i - 2) * record.dt)
+        ws.cell(row=i, column=2, value=value)
+    book.save(path)
+    return f"'Ground motion'!B1:B{record.n + 20}"  # generous range: header and trailing blanks are skipped
+
+
+def test_fill_with_record_option_leaves_input_byte_identical(tmp_path, capsys):
+    """fill reads SHEET!RANGE, writes a verifiable workbook, and the input file keeps its exact bytes."""
+    record = synthetic_record(3.0, 0.01, pga=0.2, seed=12)
+    source = tmp_path / "input.xlsx"
+    reference = _input_book(source, record)
+    digest = hashlib.sha256(source.read_bytes()).hexdigest()
+    stamp = os.stat(source).st_mtime_ns
+    out = tmp_path / "out.xlsx"
+    code = main(["fill", str(source), "--out", str(out), "--record", reference, "--dt", "0.01", "--unit", "g",
+                 "--dampings", "0.05", "--periods", "0.1,4,12", "--oscillator", "tank:0.9:0.02"])  # fmt: skip
+    assert code == 0, capsys.readouterr().err
+    assert hashlib.sha256(source.read_bytes()).hexdigest() == digest
+    assert os.stat(source).st_mtime_ns == stamp
+    assert main(["verify", str(out)]) == 0
+    book = openpyxl.load_workbook(out)
+    assert book["Peaks"]["A5"].value == "tank"
+    assert "input.xlsx 'Ground motion'!B1" in book["Audit"]["B12"].value or "Ground motion" in str(
+        [c.value for c in book["Audit"]["B"]]
+    )
+
+
+def test_fill_reads_named_input_cells(tmp_path, capsys):
+    """With gs_in_* defined names in the input workbook, fill needs no record options."""
+    from openpyxl.workbook.defined_name import DefinedName
+
+    record = synthetic_record(2.0, 0.02, pga=150.0, unit="cm/s2", seed=2)
+    source = tmp_path / "named.xlsx"
+    _input_book(source, record)
+    book = openpyxl.load_workbook(source)
+    ws = book["Ground motion"]
+    ws["D1"], ws["D2"] = 0.02, "gal"
+    for name, ref in (("gs_in_record", f"$B$1:$B${record.n + 1}"), ("gs_in_dt", "$D$1"), ("gs_in_unit", "$D$2")):
+        book.defined_names[name] = DefinedName(name, attr_text=f"'Ground motion'!{ref}")
+    book.save(source)
+    out = tmp_path / "out.xlsx"
+    assert main(["fill", str(source), "--out", str(out), "--periods", "0.2,2,5"]) == 0, capsys.readouterr().err
+    result = openpyxl.load_workbook(out)
+    assert result["Record"]["B4"].value == "gal"
+
+
+def test_fill_reports_a_bad_cell_in_one_line(tmp_path, capsys):
+    """An interior text cell in the record range exits 2 with a one-line message naming the row."""
+    record = synthetic_record(1.0, 0.01, seed=1)
+    source = tmp_path / "bad.xlsx"
+    reference = _input_book(source, record)
+    book = openpyxl.load_workbook(source)
+    book["Ground motion"]["B30"] = "n/a"
+    book.save(source)
+    assert main(["fill", str(source), "--out", str(tmp_path / "o.xlsx"), "--record", reference, "--dt", "0.01"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert err == "groundstep fill: error: row 30 of the acceleration range holds the text 'n/a', not a number"
+    assert not (tmp_path / "o.xlsx").exists()
+
+
+def test_fill_refuses_to_write_over_its_input(tmp_path, capsys):
+    """--out equal to the input is refused (exit 2); the input is never overwritten."""
+    source = tmp_path / "in.xlsx"
+    _input_book(source, synthetic_record(1.0, 0.01, seed=1))
+    before = source.read_bytes()
+    assert main(["fill", str(source), "--out", str(source), "--force", "--record", "'Ground motion'!B1:B90", "--dt", "0.01"]) == 2
+    assert "the input is never overwritten" in capsys.readouterr().err
+    assert source.read_bytes() == before
+
+
+def test_debug_shows_the_traceback(tmp_path):
+    """Without --debug an error is one line; with --debug the traceback is printed."""
+    missing = tmp_path / "nope.xlsx"
+    plain = _run("fill", missing, "--out", tmp_path / "o.xlsx")
+    assert plain.returncode == 2 and "Traceback" not in plain.stderr
+    assert plain.stderr.strip() == f"groundstep fill: error: input workbook {str(missing)!r} does not exist"
+    debug = _run("fill", missing, "--out", tmp_path / "o.xlsx", "--debug")
+    assert debug.returncode != 0 and "Traceback" in debug.stderr
+
+
+def test_spectrum_many_files_in_parallel(tmp_path):
+    """Two workers write one CSV and JSON per file equal to elastic_spectrum; progress goes to stderr."""
+    files = []
+    for seed in range(3):
+        path = tmp_path / f"rec{seed}.txt"
+        np.savetxt(path, synthetic_record(3.0, 0.01, pga=0.1, seed=seed).accel_in("g"), fmt="%.8g")
+        files.append(path)
+    (tmp_path / "bad.txt").write_text("1\n2\nthree\n")
+    out_dir = tmp_path / "out"
+    out_dir.mkdir()
+    result = _run("spectrum", *files, tmp_path / "bad.txt", "--dt", "0.01", "--out-dir", out_dir,
+                  "--workers", "2", "--dampings", "0.02,0.05", "--periods", "0.05,5,20")  # fmt: skip
+    assert result.returncode == 2  # one bad file
+    assert "bad.txt: line 3 is not numeric" in result.stderr
+    assert "[4/4]" in result.stderr  # progress, one line per file when stderr is not a terminal
+    assert "3 of 4 records written" in result.stdout
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        record = Record.from_text(files[1], 0.01, "g")
+        spectrum = elastic_spectrum(record, np.geomspace(0.05, 5, 20), [0.02, 0.05])
+    rows = list(csv.reader((out_dir / "rec1.spectrum.csv").open()))
+    assert rows[0][:5] == ["period [s]", "SD zeta=0.02 [m]", "PSV zeta=0.02 [m/s]", "PSA zeta=0.02 [g]", "SA zeta=0.02 [g]"]
+    table = np.array(rows[1:], dtype=float)
+    # values are written with repr (17 digits): equal to the core API within rounding of the period grid
+    assert_allclose(table[:, 7], spectrum.psa[1] / 9.80665, rtol=1e-12)
+    json_run = _run("spectrum", files[0], "--dt", "0.01", "--out-dir", out_dir, "--format", "json", "--quiet")
+    assert json_run.returncode == 0 and json_run.stderr == ""
+    data = json.loads((out_dir / "rec0.spectrum.json").read_text())
+    assert data["units"] == {"sd": "m", "psv": "m/s", "psa": "g", "sa": "g"} and data["caution"] == lay.CAUTION
+    again = _run("spectrum", files[0], "--dt", "0.01", "--out-dir", out_dir, "--format", "json")
+    assert again.returncode == 2 and "exists; pass --force" in again.stderr
+
+
+def test_warm_reports_first_call_time(capsys):
+    """warm calls the kernels once and prints the time it took."""
+    assert main(["warm"]) == 0
+    out = capsys.readouterr().out
+    assert "first calls took" in out and "elastic_spectrum" in out
+
+
+def test_templates_command_writes_templates(tmp_path, capsys):
+    """templates DIR writes the calculation-package templates (module of the worksheet-functions work)."""
+    pytest.importorskip("groundstep.addin.templates", reason="addin/templates.py has not landed yet")
+    assert main(["templates", str(tmp_path / "t")]) == 0
+    assert any(p.suffix in (".xlsx", ".xlsm") for p in (tmp_path / "t").iterdir())
+
+
+def test_bad_option_values_are_one_line(capsys, tmp_path):
+    """Malformed --periods and --workers give exit 2 with the option named."""
+    path = tmp_path / "r.txt"
+    path.write_text("0\n1\n0\n")
+    assert main(["spectrum", str(path), "--dt", "0.01", "--periods", "1,2", "--out-dir", str(tmp_path)]) == 2
+    assert "--periods '1,2': give SHORTEST,LONGEST,COUNT" in capsys.readouterr().err
+    assert main(["spectrum", str(path), "--dt", "0.01", "--workers", "0"]) == 2
+    assert "--workers must be >= 1, got 0" in capsys.readouterr().err
