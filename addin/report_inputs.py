@@ -2,7 +2,7 @@
 
 An input workbook is only read, never written: the file's bytes are read
 into memory and openpyxl loads that copy. Cells are found through defined
-names (the calculation-package template's input cells) or through an
+names (the calculation-package template, ``templates.INPUT_NAMES``) or through an
 explicit ``SHEET!RANGE`` for the record. Every cell is checked by the
 worksheet-function entrance (``_cells``), so messages are the same as in the
 worksheet functions and name the range and row.
@@ -28,20 +28,21 @@ __all__ = ["INPUT_NAMES", "InputError", "read_input_workbook", "settings_from_ce
 #: calculation-package template's names come first; ``gs_in_*`` names may be
 #: added to any workbook by hand.
 INPUT_NAMES: dict[str, tuple[str, ...]] = {
-    "record": ("StepAccel", "gs_in_record"),
-    "dt": ("StepDt", "gs_in_dt"),
-    "unit": ("StepUnit", "gs_in_unit"),
-    "periods": ("StepPeriods", "gs_in_periods"),
-    "dampings": ("StepDampings", "gs_in_dampings"),
-    "method": ("StepMethod", "gs_in_method"),
-    "oscillator_periods": ("StepPeakPeriods", "gs_in_oscillator_periods"),
-    "oscillator_dampings": ("StepPeakDampings", "gs_in_oscillator_dampings"),
-    "oscillator_labels": ("StepPeakLabels", "gs_in_oscillator_labels"),
-    "project": ("StepProject", "gs_in_project"),
-    "site": ("StepSite", "gs_in_site"),
-    "structure": ("StepStructure", "gs_in_structure"),
-    "engineer": ("StepEngineer", "gs_in_engineer"),
-    "scenario": ("StepScenario", "gs_in_scenario"),
+    "record": ("input_record", "gs_in_record"),
+    "dt": ("input_dt", "gs_in_dt"),
+    "unit": ("input_unit", "gs_in_unit"),
+    "record_name": ("input_record_name", "gs_in_record_name"),
+    "periods": ("input_periods", "gs_in_periods"),
+    "dampings": ("input_dampings", "gs_in_dampings"),
+    "method": ("input_method", "gs_in_method"),
+    "oscillator_periods": ("input_peak_periods", "gs_in_oscillator_periods"),
+    "oscillator_dampings": ("input_peak_dampings", "gs_in_oscillator_dampings"),
+    "oscillator_labels": ("gs_in_oscillator_labels",),
+    "project": ("input_project", "gs_in_project"),
+    "site": ("input_site", "gs_in_site"),
+    "structure": ("gs_in_structure",),
+    "engineer": ("input_engineer", "gs_in_engineer"),
+    "scenario": ("gs_in_scenario",),
 }
 
 _REFERENCE = re.compile(r"^(?:'((?:[^']|'')+)'|([^!]+))!(\$?[A-Za-z]{1,3}\$?\d+(?::\$?[A-Za-z]{1,3}\$?\d+)?)$")
@@ -94,19 +95,19 @@ def settings_from_cells(
     base = base or ReportSettings()
     values = record_values if record_values is not None else get("record")
     if values is None:
-        raise InputError(
-            "the workbook has no named acceleration range (StepAccel); pass --record SHEET!RANGE"
-        )
+        raise InputError("the workbook has no named acceleration range (input_record); pass --record SHEET!RANGE")
     accel = _cells.numbers(values, "the acceleration range", 2)
     if dt is None:
         cell = get("dt")
         if cell is None:
-            raise InputError("the workbook has no named time-step cell (StepDt); pass --dt SECONDS")
+            raise InputError("the workbook has no named time-step cell (input_dt); pass --dt SECONDS")
         dt = _cells.positive(cell, "the time-step cell", "s")
     if unit is None:
         cell = get("unit")
         unit = "g" if cell is None else _cells.unit(cell, "the unit cell", ACCELERATION_UNITS, "g")
-    record = Record(accel, dt, unit, name=source)
+    name_cell = get("record_name")
+    name = _cells.text(name_cell, "the record-name cell", "") if name_cell is not None else ""
+    record = Record(accel, dt, unit, name=name or source)
 
     periods = get("periods")
     dampings = get("dampings")
@@ -128,7 +129,10 @@ def settings_from_cells(
         if cell is not None:
             project.append((key, _cells.text(cell, f"the {key} cell", "")))
     settings = ReportSettings(
-        periods=tuple(float(p) for p in _cells.periods(periods, "the period range")) if periods is not None else base.periods,
+        # T = 0 (the PGA) is on the Summary sheet; a logarithmic period axis cannot show it
+        periods=tuple(float(p) for p in _cells.periods(periods, "the period range") if p > 0.0)
+        if periods is not None
+        else base.periods,
         dampings=tuple(float(d) for d in _cells.dampings(dampings, "the damping range"))
         if dampings is not None
         else base.dampings,

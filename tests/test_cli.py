@@ -241,3 +241,34 @@ def test_bad_option_values_are_one_line(capsys, tmp_path):
     assert "--periods '1,2': give SHORTEST,LONGEST,COUNT" in capsys.readouterr().err
     assert main(["spectrum", str(path), "--dt", "0.01", "--workers", "0"]) == 2
     assert "--workers must be >= 1, got 0" in capsys.readouterr().err
+
+
+def test_fill_reads_the_calculation_package_template(tmp_path, capsys):
+    """A filled-in copy of the template (its named input cells) gives a verifiable result workbook."""
+    templates = pytest.importorskip("groundstep.addin.templates", reason="addin/templates.py has not landed yet")
+    record = synthetic_record(4.0, 0.01, pga=0.25, seed=31)
+    book = templates.build_calculation_package()
+
+    def cell(name):
+        sheet, ref = templates.INPUT_NAMES[name].split("!")
+        return book[sheet][ref.replace("$", "").split(":")[0]]
+
+    cell("input_dt").value = 0.01
+    cell("input_unit").value = "g"
+    cell("input_record_name").value = "paste test"
+    cell("input_project").value = "Pier 4 retrofit (invented)"
+    first = cell("input_record")
+    for i, value in enumerate(record.accel_in("g").tolist(), start=1):
+        book[first.parent.title].cell(row=first.row + i, column=first.column, value=value)
+    source = tmp_path / "package.xlsx"
+    book.save(source)
+    digest = hashlib.sha256(source.read_bytes()).hexdigest()
+    out = tmp_path / "result.xlsx"
+    assert main(["fill", str(source), "--out", str(out)]) == 0, capsys.readouterr().err
+    assert hashlib.sha256(source.read_bytes()).hexdigest() == digest
+    assert main(["verify", str(out)]) == 0
+    result = openpyxl.load_workbook(out)
+    assert result["Summary"]["B5"].value == "Pier 4 retrofit (invented)"
+    assert result["Summary"]["B12"].value == "paste test"
+    periods = [row[0].value for row in result["Spectra"]["A5:A44"]]  # 41 template periods less T = 0
+    assert periods[0] == 0.02 and len([p for p in periods if p]) == 40
