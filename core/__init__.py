@@ -9,6 +9,8 @@ from importlib.metadata import PackageNotFoundError, version
 
 from ._methods import METHODS, Method
 from ._units import ACCELERATION_UNITS, LENGTH_UNITS, STANDARD_GRAVITY
+from .inelastic import ConvergenceError, ConvergenceWarning, ductility_spectrum, inelastic_response
+from .inelastic_results import DuctilitySpectrum, InelasticResponse
 from .linear import DEFAULT_STEP_RATIO, SubstepWarning, elastic_spectrum, linear_response, period_grid
 from .record import Record, RecordTextWarning
 from .results import ElasticSpectrum, LinearResponse
@@ -20,8 +22,12 @@ except PackageNotFoundError:  # running from a source tree that was not installe
 
 __all__ = [
     "ACCELERATION_UNITS",
+    "ConvergenceError",
+    "ConvergenceWarning",
     "DEFAULT_STEP_RATIO",
+    "DuctilitySpectrum",
     "ElasticSpectrum",
+    "InelasticResponse",
     "LENGTH_UNITS",
     "LinearResponse",
     "METHODS",
@@ -31,7 +37,9 @@ __all__ = [
     "STANDARD_GRAVITY",
     "SubstepWarning",
     "__version__",
+    "ductility_spectrum",
     "elastic_spectrum",
+    "inelastic_response",
     "linear_response",
     "period_grid",
 ]

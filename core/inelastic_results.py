@@ -1,0 +1,171 @@
+"""Frozen result objects of the yielding engine. They hold values, no numerics."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import NDArray
+
+__all__ = ["DuctilitySpectrum", "InelasticResponse"]
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class InelasticResponse:
+    """Response of one yielding oscillator, returned by `inelastic_response`.
+
+    Forces are per unit mass [m/s²]; energies per unit mass [m²/s²] in the
+    relative formulation (the oscillator's motion relative to the ground).
+    Histories are at the record's sample times.
+
+    Attributes
+    ----------
+    period, damping, hardening : float
+        T [s], ζ [-] and α [-] (post-yield stiffness α·k).
+    method : str
+        ``"average"``, ``"linear"`` or ``"newmark"``.
+    beta, gamma : float
+        Newmark parameters.
+    dt : float
+        Record time step [s].
+    substeps : int
+        Sub-steps per record step from the Δt/T limit (1 when none).
+    yield_force : float
+        fy/m [m/s²].
+    yield_coefficient : float
+        fy/(m·g) [-], g = 9.80665 m/s².
+    reduction_factor : float
+        R = (peak elastic force of the same oscillator) / fy [-]; below 1 the
+        oscillator stays elastic.
+    elastic_force : float
+        Peak elastic force per unit mass ω²·SD [m/s²] of the same oscillator
+        kept linear (same method and sub-steps).
+    time, displacement, velocity, total_acceleration, restoring_force : ndarray (n,)
+        t [s], relative u [m], relative u̇ [m/s], ü + ü_g = -(c·u̇ + fs)
+        [m/s²] and fs [m/s²].
+    peak_displacement : float
+        max |u| [m].
+    time_of_peak_displacement : float
+        First time [s] of the peak.
+    yield_displacement : float
+        u_y = fy/k [m].
+    ductility : float
+        μ = max |u| / u_y [-] (below 1 when the oscillator stays elastic).
+    residual_displacement : float
+        u - fs/k at the end of the record [m]: where the oscillator comes to
+        rest if it then unloads elastically (its permanent set).
+    yield_excursions : int
+        Entries into a yielding branch (each start of yielding in either
+        direction).
+    input_energy, kinetic_energy, damping_energy, strain_energy, hysteretic_energy : float
+        At the end of the record [m²/s²]: E_I = -∫ü_g du, E_K = u̇²/2,
+        E_D = ∫c·u̇ du, E_S = fs²/(2k) (recoverable), E_H = ∫fs du - E_S.
+    input_energy_history, kinetic_energy_history, damping_energy_history,
+    strain_energy_history, hysteretic_energy_history : ndarray (n,) or None
+        The same at every sample when ``energy_histories=True``, else None.
+    energy_balance_error : float
+        max over samples of |E_I - (E_K + E_D + E_S + E_H)| divided by
+        max over samples of |E_I| (0 for a record with no input) [-].
+    iterations : int
+        Newton iterations (tangent solves) in all.
+    converged : bool
+        Every step met the residual tolerance. Always True on a returned
+        result: a step that cannot be made to converge raises
+        `ConvergenceError` instead.
+    retried_steps : int
+        Sub-steps that had to be split into smaller pieces to converge.
+    tolerance : float
+        Accepted residual |R| [m/s²] (the relative tolerance times the
+        reference force).
+    """
+
+    period: float
+    damping: float
+    hardening: float
+    method: str
+    beta: float
+    gamma: float
+    dt: float
+    substeps: int
+    yield_force: float
+    yield_coefficient: float
+    reduction_factor: float
+    elastic_force: float
+    time: NDArray[np.float64]
+    displacement: NDArray[np.float64]
+    velocity: NDArray[np.float64]
+    total_acceleration: NDArray[np.float64]
+    restoring_force: NDArray[np.float64]
+    peak_displacement: float
+    time_of_peak_displacement: float
+    yield_displacement: float
+    ductility: float
+    residual_displacement: float
+    yield_excursions: int
+    input_energy: float
+    kinetic_energy: float
+    damping_energy: float
+    strain_energy: float
+    hysteretic_energy: float
+    input_energy_history: NDArray[np.float64] | None
+    kinetic_energy_history: NDArray[np.float64] | None
+    damping_energy_history: NDArray[np.float64] | None
+    strain_energy_history: NDArray[np.float64] | None
+    hysteretic_energy_history: NDArray[np.float64] | None
+    energy_balance_error: float
+    iterations: int
+    converged: bool
+    retried_steps: int
+    tolerance: float
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class DuctilitySpectrum:
+    """Constant-ductility spectra, returned by `ductility_spectrum`.
+
+    Every 2-D array has shape (len(ductilities), len(periods)); SI units,
+    forces per unit mass.
+
+    Attributes
+    ----------
+    periods : ndarray (n_periods,)
+        T [s].
+    ductilities : ndarray (n_ductilities,)
+        Target ductilities μ [-].
+    damping, hardening : float
+        ζ [-] and α [-].
+    yield_coefficient : ndarray
+        fy/(m·g) [-] giving each target ductility (the largest such strength).
+    reduction_factor : ndarray
+        R = (peak elastic force) / fy [-]; 1 for μ = 1.
+    yield_pseudo_acceleration : ndarray
+        fy/m [m/s²]; for μ = 1 it equals the elastic PSA.
+    peak_displacement : ndarray
+        Inelastic displacement demand μ_achieved · fy/k [m].
+    achieved_ductility : ndarray
+        Ductility of the oscillator at the returned strength [-] (the target
+        to within the search tolerance); NaN at T = 0.
+    elastic_pseudo_acceleration : ndarray (n_periods,)
+        Peak elastic force per unit mass ω²·SD [m/s²] (PGA at T = 0).
+    substeps : ndarray of int (n_periods,)
+        Sub-steps per record step used for each period.
+    method, beta, gamma, dt, max_step_ratio
+        Settings the spectra were computed with.
+    """
+
+    periods: NDArray[np.float64]
+    ductilities: NDArray[np.float64]
+    damping: float
+    hardening: float
+    yield_coefficient: NDArray[np.float64]
+    reduction_factor: NDArray[np.float64]
+    yield_pseudo_acceleration: NDArray[np.float64]
+    peak_displacement: NDArray[np.float64]
+    achieved_ductility: NDArray[np.float64]
+    elastic_pseudo_acceleration: NDArray[np.float64]
+    substeps: NDArray[np.int64]
+    method: str
+    beta: float
+    gamma: float
+    dt: float
+    max_step_ratio: float
