@@ -14,7 +14,6 @@ Commands: ``demo``, ``fill``, ``spectrum``, ``verify``, ``templates``,
 from __future__ import annotations
 
 import argparse
-import os
 import shlex
 import sys
 import time
