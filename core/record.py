@@ -149,7 +149,8 @@ class Record:
         ``Record`` give the same digest.
         """
         digest = hashlib.sha256()
-        digest.update(np.ascontiguousarray(self.accel_in(self.unit), dtype="<f8").tobytes())
+        samples = self.accel_in(self.unit) + 0.0  # + 0.0 turns -0.0 into 0.0: equal values, equal digest
+        digest.update(np.ascontiguousarray(samples, dtype="<f8").tobytes())
         digest.update(f"|{self.unit}|{self.dt!r}".encode())
         return digest.hexdigest()
 

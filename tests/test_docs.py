@@ -13,7 +13,13 @@ import pytest
 ROOT = Path(__file__).resolve().parents[1]
 CAUTION = "Results support, not replace, engineering judgement; local codes and licensed practice govern."
 
-CORE_MODULES = ["groundstep.core.record", "groundstep.core.linear", "groundstep.core._units"]
+CORE_MODULES = [
+    "groundstep.core.record",
+    "groundstep.core.linear",
+    "groundstep.core._units",
+    "groundstep.core.synthetic",
+    "groundstep.core.measures",
+]
 
 
 def _readme_block(marker: str) -> str:

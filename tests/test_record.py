@@ -85,6 +85,7 @@ def test_sha256_depends_on_samples_unit_and_dt():
     assert base != Record([0.1, 0.2, 0.3000001], 0.01, "g").sha256()
     assert base != Record([0.1, 0.2, 0.3], 0.02, "g").sha256()
     assert base != Record([0.1, 0.2, 0.3], 0.01, "m/s2").sha256()
+    assert Record([-0.0, 0.2], 0.01).sha256() == Record([0.0, 0.2], 0.01).sha256()
 
 
 @pytest.mark.parametrize(
