@@ -378,13 +378,17 @@ def _ductility_spectrum(
     moving = period_values > 0.0
     achieved[:, ~moving] = np.nan
     search = targets > 1.0
+    solver = _Solver(record, resolved, alpha, damping, relative_tolerance, iterations_allowed, stats)
     if moving.any() and search.any():
-        solver = _Solver(record, resolved, alpha, damping, relative_tolerance, iterations_allowed, stats)
         found_r, found_mu = _search(
             solver, period_values[moving], elastic[moving], substeps[moving], targets[search]
         )
         reduction[np.ix_(search, moving)] = found_r
         achieved[np.ix_(search, moving)] = found_mu
+    if moving.any() and not search.all():
+        # fy = F_el: 1 unless the oscillator peaks between samples (sub-stepped periods)
+        at_elastic = solver.ductility(period_values[moving], elastic[moving], substeps[moving])
+        achieved[np.ix_(~search, moving)] = at_elastic
     fy = elastic[None, :] / reduction
     omega = np.zeros(period_values.size)
     omega[moving] = 2.0 * np.pi / period_values[moving]
@@ -640,6 +644,6 @@ def _check_ductilities(ductilities: ArrayLike) -> NDArray[np.float64]:
     if low.size:
         index = int(low[0])
         raise ValueError(
-            f"`ductilities` must be >= 1 (peak over yield displacement); index {index} holds {values[index]!r}"
+            f"`ductilities` must be >= 1 (peak over yield displacement); index {index} holds {float(values[index])!r}"
         )
     return values

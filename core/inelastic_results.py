@@ -144,7 +144,10 @@ class DuctilitySpectrum:
         Inelastic displacement demand μ_achieved · fy/k [m].
     achieved_ductility : ndarray
         Ductility of the oscillator at the returned strength [-] (the target
-        to within the search tolerance); NaN at T = 0.
+        to within the search tolerance); NaN at T = 0. For μ = 1 it can
+        exceed 1 at sub-stepped periods (T < Δt/0.1 by default): the elastic
+        peak is taken at sample times and the oscillator may yield between
+        them.
     elastic_pseudo_acceleration : ndarray (n_periods,)
         Peak elastic force per unit mass ω²·SD [m/s²] (PGA at T = 0).
     substeps : ndarray of int (n_periods,)
