@@ -300,10 +300,10 @@ def _spectra(n_periods, dampings, unit, length_unit, velocity_unit) -> Sheet:
     for index, damping in enumerate(dampings):
         label = damping_label(damping)
         columns += [
-            Column(f"sd_{index}", f"SD {label}", length_unit, SCIENTIFIC),
-            Column(f"psv_{index}", f"PSV {label}", velocity_unit, SCIENTIFIC),
-            Column(f"psa_{index}", f"PSA {label}", unit, SCIENTIFIC),
-            Column(f"sa_{index}", f"SA {label}", unit, SCIENTIFIC),
+            Column(f"sd_{index}", f"SD {label}", length_unit, SCIENTIFIC, 17.0),
+            Column(f"psv_{index}", f"PSV {label}", velocity_unit, SCIENTIFIC, 17.0),
+            Column(f"psa_{index}", f"PSA {label}", unit, SCIENTIFIC, 17.0),
+            Column(f"sa_{index}", f"SA {label}", unit, SCIENTIFIC, 17.0),
         ]
     table = Table("spectra_table", "Elastic response spectra", 3, 1, tuple(columns), n_periods, checked=True)
     right = len(columns) + 2
