@@ -19,7 +19,7 @@ import datetime as _dt
 import math
 import re
 from numbers import Real
-from typing import Any
+from typing import Any, NamedTuple
 
 import numpy as np
 from numpy.typing import NDArray
@@ -65,7 +65,7 @@ def numbers(value: Any, what: str, min_count: int = 1) -> NDArray[np.float64]:
         A two-dimensional range; an interior blank, text, Boolean, date or
         error cell (named by its row or column in the range); too few numbers.
     """
-    return _array(_values(value, what), what, min_count)
+    return _array(_values(value, what)[0], what, min_count)
 
 
 def number(value: Any, what: str, default: Any = _REQUIRED) -> float:
@@ -82,7 +82,7 @@ def number(value: Any, what: str, default: Any = _REQUIRED) -> float:
         if default is _REQUIRED:
             raise CellError(f"{what} is blank")
         return default
-    return _number(cell, what)
+    return _number_in(cell, what)
 
 
 def positive(value: Any, what: str, unit: str = "") -> float:
@@ -103,10 +103,11 @@ def nonnegative(value: Any, what: str, default: Any = _REQUIRED) -> float:
 
 def periods(value: Any, what: str) -> NDArray[np.float64]:
     """Periods [s] of a range: numbers, each >= 0 (0 is a rigid oscillator)."""
-    found = _values(value, what)
-    for position, period in found:
-        if period < 0.0:
-            raise CellError(f"{position} of {what} holds {period:g}; periods must be >= 0 s")
+    found, line, start = _values(value, what)
+    negative = np.flatnonzero(found < 0.0)
+    if negative.size:
+        index = int(negative[0])
+        raise CellError(f"{line.position(start + index)} of {what} holds {found[index]:g}; periods must be >= 0 s")
     return _array(found, what, 1)
 
 
@@ -117,9 +118,9 @@ def damping(value: Any, what: str, default: Any = _REQUIRED) -> float:
 
 def dampings(value: Any, what: str) -> NDArray[np.float64]:
     """Ratios of critical damping from a range, each checked like `damping`."""
-    found = _values(value, what)
-    for position, ratio in found:
-        _check_damping(ratio, f"{position} of {what}", ": ")
+    found, line, start = _values(value, what)
+    for index, ratio in enumerate(found.tolist()):
+        _check_damping(ratio, f"{line.position(start + index)} of {what}", ": ")
     return _array(found, what, 1)
 
 
@@ -168,46 +169,76 @@ def flag(value: Any, what: str, default: bool) -> bool:
 def method(value: Any, what: str, default: str) -> str | tuple[float, float]:
     """A method name, or a (beta, gamma) pair from a two-cell range."""
     if isinstance(value, (list, tuple)):
-        cells = [cell for _, cell in _line(value, what)]
+        cells = _line(value, what).cells
         if len(cells) == 2:
-            return (_number(cells[0], f"the beta cell of {what}"), _number(cells[1], f"the gamma cell of {what}"))
+            return (_number_in(cells[0], f"the beta cell of {what}"), _number_in(cells[1], f"the gamma cell of {what}"))
     return text(value, what, default).lower()
 
 
-def _values(value: Any, what: str) -> list[tuple[str, float]]:
-    """(position, number) of every cell between the leading headers and the trailing blanks."""
-    cells = _line(value, what)
+class _Line(NamedTuple):
+    """The cells of a one-column or one-row range and how to name a cell's position."""
+
+    cells: list[Any]
+    label: str  # "row" or "column"
+
+    def position(self, index: int) -> str:
+        return f"{self.label} {index + 1}"
+
+
+class _Reason(ValueError):
+    """Why one cell is not a number ("is blank", "holds the error #N/A", ...)."""
+
+
+def _values(value: Any, what: str) -> tuple[NDArray[np.float64], _Line, int]:
+    """The numbers between the leading headers and the trailing blanks, the line, and the first index."""
+    line = _line(value, what)
+    cells = line.cells
     start = 0
-    while start < len(cells) and (_is_blank(cells[start][1]) or _is_header(cells[start][1])):
+    while start < len(cells) and (_is_blank(cells[start]) or _is_header(cells[start])):
         start += 1
     stop = len(cells)
-    while stop > start and _is_blank(cells[stop - 1][1]):
+    while stop > start and _is_blank(cells[stop - 1]):
         stop -= 1
-    return [(position, _number(cell, f"{position} of {what}")) for position, cell in cells[start:stop]]
+    interior = cells[start:stop]
+    if set(map(type, interior)) <= {float, int}:  # the usual case, done by numpy
+        found = np.array(interior, dtype=np.float64)
+        bad = np.flatnonzero(~np.isfinite(found))
+        if bad.size:
+            raise CellError(f"{line.position(start + int(bad[0]))} of {what} holds {float(found[bad[0]])!r}, not a finite number")
+        return found, line, start
+    found = np.empty(len(interior))
+    for index, cell in enumerate(interior):
+        try:
+            found[index] = _number(cell)
+        except _Reason as reason:
+            raise CellError(f"{line.position(start + index)} of {what} {reason}") from None
+    return found, line, start
 
 
-def _array(found: list[tuple[str, float]], what: str, min_count: int) -> NDArray[np.float64]:
-    if len(found) < min_count:
-        if not found:
+def _array(found: NDArray[np.float64], what: str, min_count: int) -> NDArray[np.float64]:
+    if found.size < min_count:
+        if not found.size:
             raise CellError(f"{what} holds no numbers")
-        raise CellError(f"{what} holds {len(found)} number(s); at least {min_count} are needed")
-    return np.array([number for _, number in found], dtype=np.float64)
+        raise CellError(f"{what} holds {found.size} number(s); at least {min_count} are needed")
+    return found
 
 
-def _line(value: Any, what: str) -> list[tuple[str, Any]]:
-    """The cells of a scalar, a flat list, or a one-column or one-row range, with positions."""
+def _line(value: Any, what: str) -> _Line:
+    """The cells of a scalar, a flat list, or a one-column or one-row range."""
     if isinstance(value, np.ndarray):
         value = value.tolist()
     if not isinstance(value, (list, tuple)):
-        return [("row 1", value)]
+        return _Line([value], "row")
     if not any(isinstance(row, (list, tuple)) for row in value):
-        return [(f"row {index}", cell) for index, cell in enumerate(value, start=1)]
-    rows = [list(row) if isinstance(row, (list, tuple)) else [row] for row in value]
-    width = max(len(row) for row in rows)
-    if width == 1:
-        return [(f"row {index}", row[0] if row else None) for index, row in enumerate(rows, start=1)]
+        return _Line(list(value), "row")
+    rows = value if all(isinstance(row, (list, tuple)) for row in value) else [
+        row if isinstance(row, (list, tuple)) else [row] for row in value
+    ]
+    width = max(map(len, rows))
+    if width <= 1:
+        return _Line([row[0] if row else None for row in rows], "row")
     if len(rows) == 1:
-        return [(f"column {index}", cell) for index, cell in enumerate(rows[0], start=1)]
+        return _Line(list(rows[0]), "column")
     raise CellError(
         f"{what} must be one column or one row, got {len(rows)} rows x {width} columns; "
         "select a single column"
@@ -215,10 +246,8 @@ def _line(value: Any, what: str) -> list[tuple[str, Any]]:
 
 
 def _single(value: Any, what: str) -> Any:
-    if isinstance(value, np.ndarray):
-        value = value.tolist()
-    if isinstance(value, (list, tuple)):
-        cells = [cell for _, cell in _line(value, what)]
+    if isinstance(value, (list, tuple, np.ndarray)):
+        cells = _line(value, what).cells
         if len(cells) != 1:
             raise CellError(f"{what} must be one cell, got a range of {len(cells)} cells")
         return cells[0]
@@ -248,36 +277,42 @@ def _text_number(cell: str) -> float:
     return float(stripped)
 
 
-def _number(cell: Any, where: str) -> float:
-    """The number in one cell, or CellError saying what `where` holds instead."""
+def _number(cell: Any) -> float:
+    """The number in one cell, or _Reason saying what the cell holds instead."""
     if isinstance(cell, (bool, np.bool_)):
-        raise CellError(f"{where} holds {str(bool(cell)).upper()}, a Boolean, not a number")
+        raise _Reason(f"holds {str(bool(cell)).upper()}, a Boolean, not a number")
     if isinstance(cell, (Real, np.integer, np.floating)):
         result = float(cell)
     elif cell is None:
-        raise CellError(f"{where} is blank")
+        raise _Reason("is blank")
     elif isinstance(cell, str):
         stripped = cell.strip()
         if not stripped:
-            raise CellError(f"{where} is blank")
+            raise _Reason("is blank")
         if stripped in EXCEL_ERRORS:
-            raise CellError(f"{where} holds the error {stripped}")
+            raise _Reason(f"holds the error {stripped}")
         if _DECIMAL_COMMA.match(stripped):
-            raise CellError(
-                f"{where} holds the text {stripped!r}: write the number with a decimal point "
-                f"({stripped.replace(',', '.')})"
+            raise _Reason(
+                f"holds the text {stripped!r}: write the number with a decimal point ({stripped.replace(',', '.')})"
             )
         try:
             result = _text_number(stripped)
         except ValueError:
-            raise CellError(f"{where} holds the text {stripped!r}, not a number") from None
+            raise _Reason(f"holds the text {stripped!r}, not a number") from None
     elif isinstance(cell, (_dt.date, _dt.time, _dt.timedelta)):
-        raise CellError(f"{where} holds a date or time ({cell}), not a number")
+        raise _Reason(f"holds a date or time ({cell}), not a number")
     else:
-        raise CellError(f"{where} holds {_shown(cell)}, not a number")
+        raise _Reason(f"holds {_shown(cell)}, not a number")
     if not math.isfinite(result):
-        raise CellError(f"{where} holds {result!r}, not a finite number")
+        raise _Reason(f"holds {result!r}, not a finite number")
     return result
+
+
+def _number_in(cell: Any, where: str) -> float:
+    try:
+        return _number(cell)
+    except _Reason as reason:
+        raise CellError(f"{where} {reason}") from None
 
 
 def _check_damping(ratio: float, what: str, sep: str) -> float:
