@@ -171,7 +171,9 @@ def history(load, dt, substeps, k, c, fy, hardening, beta, gamma, tol, max_iter,
                 for piece in range(pieces):
                     pa = p0 + dp * (sub + piece / pieces)
                     pb = p0 + dp * (sub + (piece + 1) / pieces)
-                    ok, d, v1, a1, f1, br1, its, res = _newton(su, sv, sa, sf, sb, pb, c, k, hk, fyr, const, tol, max_iter)
+                    ok, d, v1, a1, f1, br1, its, res = _newton(
+                        su, sv, sa, sf, sb, pb, c, k, hk, fyr, const, tol, max_iter
+                    )
                     spent += its
                     if not ok:
                         worst = res

@@ -13,8 +13,9 @@ from . import _kernels_inelastic as _kernels
 from . import _validate
 from ._methods import Method, resolve_method, substep_counts
 from ._units import STANDARD_GRAVITY
-from .inelastic_results import DuctilitySpectrum, InelasticResponse
-from .linear import DEFAULT_STEP_RATIO, SubstepWarning, _check_ratio, _check_record, _limit_text, elastic_spectrum
+from .inelastic_results import ConvergenceError, ConvergenceWarning, DuctilitySpectrum, InelasticResponse
+from .linear import DEFAULT_STEP_RATIO, SubstepWarning, elastic_spectrum, linear_response
+from .linear import _check_ratio, _check_record, _limit_text  # shared checks, one source
 from .record import Record
 
 __all__ = [
@@ -47,23 +48,6 @@ _SEARCH_PASSES = 60
 _LARGEST_REDUCTION = 1e4
 
 
-class ConvergenceError(RuntimeError):
-    """A step's Newton iterations did not converge even after splitting it.
-
-    Attributes ``time`` [s] and ``residual`` [m/s², per unit mass] locate the
-    failure.
-    """
-
-    def __init__(self, message: str, time: float, residual: float) -> None:
-        super().__init__(message)
-        self.time = time
-        self.residual = residual
-
-
-class ConvergenceWarning(UserWarning):
-    """Steps were split into smaller pieces so that Newton's method converged."""
-
-
 def inelastic_response(
     record: Record,
     period: float,
@@ -94,7 +78,7 @@ def inelastic_response(
     reduction_factor : float, optional
         Strength as R = (peak elastic force) / fy [-], > 0; the peak
         elastic force is that of the same oscillator kept linear (same
-        method and sub-steps, `elastic_spectrum`). Give exactly one of
+        method and sub-steps, `linear_response`). Give exactly one of
         `yield_coefficient` and `reduction_factor`.
     hardening : float, default 0
         Post-yield stiffness as a fraction α of the elastic stiffness, in
@@ -176,16 +160,16 @@ def inelastic_response(
     """
     record = _check_record(record)
     period = _check_period(period)
-    damping = float(_validate.dampings(damping, "damping")[0])
-    alpha = _check_hardening(hardening)
-    resolved = _check_method(method)
-    ratio = _check_ratio(max_step_ratio)
-    relative_tolerance = _check_tolerance(tolerance)
-    iterations_allowed = _check_iterations(max_iterations)
+    damping, alpha, resolved, ratio, relative_tolerance, iterations_allowed = _check_settings(
+        damping, hardening, method, max_step_ratio, tolerance, max_iterations
+    )
     coefficient, reduction = _check_strength(yield_coefficient, reduction_factor)
 
     substeps = int(substep_counts(record.dt, np.array([period]), resolved, ratio)[0])
-    elastic_force = float(_elastic_forces(record, np.array([period]), damping, resolved, ratio)[0])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", SubstepWarning)  # reported once, below
+        linear = linear_response(record, period, damping, resolved, max_step_ratio=ratio)
+    elastic_force = linear.pseudo_acceleration
     if coefficient is not None:
         fy = coefficient * STANDARD_GRAVITY
     else:
@@ -199,8 +183,7 @@ def inelastic_response(
         warnings.warn(
             f"period {period:g} s with record step {record.dt:g} s: each step split into "
             f"{substeps} sub-steps (Δt/T <= {_limit_text(resolved, ratio)})",
-            SubstepWarning,
-            stacklevel=2,
+            SubstepWarning, stacklevel=2,
         )
 
     omega = 2.0 * math.pi / period
@@ -220,8 +203,7 @@ def inelastic_response(
         warnings.warn(
             f"period {period:g} s: {retried} steps did not converge in {iterations_allowed} Newton "
             f"iterations and were split into up to {int(info[_kernels.INFO_PIECES])} pieces",
-            ConvergenceWarning,
-            stacklevel=2,
+            ConvergenceWarning, stacklevel=2,
         )
 
     kinetic = 0.5 * v * v
@@ -309,7 +291,9 @@ def ductility_spectrum(
     then refined by regula falsi with the Illinois modification until
     |μ - target| <= 1e-6·target. A crossing narrower than one grid interval
     (R ratio about 1.04) can be missed. μ = 1 gives fy = F_el exactly: the
-    elastic spectrum. At T = 0 the limit T → 0 is returned: fy = m·PGA,
+    elastic spectrum (``achieved_ductility`` reports the oscillator's actual
+    μ there, above 1 only when it peaks between samples at sub-stepped
+    periods). At T = 0 the limit T → 0 is returned: fy = m·PGA,
     R = 1 for every ductility (a rigid oscillator cannot yield without
     unbounded ductility).
 
@@ -349,12 +333,9 @@ def _ductility_spectrum(
     record = _check_record(record)
     period_values = _validate.periods(periods, "periods")
     targets = _check_ductilities(ductilities)
-    damping = float(_validate.dampings(damping, "damping")[0])
-    alpha = _check_hardening(hardening)
-    resolved = _check_method(method)
-    ratio = _check_ratio(max_step_ratio)
-    relative_tolerance = _check_tolerance(tolerance)
-    iterations_allowed = _check_iterations(max_iterations)
+    damping, alpha, resolved, ratio, relative_tolerance, iterations_allowed = _check_settings(
+        damping, hardening, method, max_step_ratio, tolerance, max_iterations
+    )
 
     substeps = substep_counts(record.dt, period_values, resolved, ratio)
     elastic = _elastic_forces(record, period_values, damping, resolved, ratio)
@@ -369,8 +350,7 @@ def _ductility_spectrum(
         warnings.warn(
             f"record step {record.dt:g} s: {split} of {substeps.size} periods sub-stepped, up to "
             f"{substeps.max()} sub-steps (Δt/T <= {_limit_text(resolved, ratio)})",
-            SubstepWarning,
-            stacklevel=3,
+            SubstepWarning, stacklevel=3,
         )
     shape = (targets.size, period_values.size)
     reduction = np.ones(shape)
@@ -380,9 +360,8 @@ def _ductility_spectrum(
     search = targets > 1.0
     solver = _Solver(record, resolved, alpha, damping, relative_tolerance, iterations_allowed, stats)
     if moving.any() and search.any():
-        found_r, found_mu = _search(
-            solver, period_values[moving], elastic[moving], substeps[moving], targets[search]
-        )
+        lanes = (period_values[moving], elastic[moving], substeps[moving])
+        found_r, found_mu = _search(solver, *lanes, targets[search])
         reduction[np.ix_(search, moving)] = found_r
         achieved[np.ix_(search, moving)] = found_mu
     if moving.any() and not search.all():
@@ -428,7 +407,9 @@ class _Solver:
             steps = int(np.sum(substeps)) * (self.record.n - 1)
             self.stats["oscillator_steps"] = self.stats.get("oscillator_steps", 0) + steps
         for lane in np.flatnonzero(failed):  # rare: repeat with step splitting
-            peak[lane] = self._robust_peak(periods[lane], k[lane], c[lane], fy[lane], substeps[lane], accepted[lane])
+            peak[lane] = self._robust_peak(
+                periods[lane], k[lane], c[lane], fy[lane], substeps[lane], accepted[lane]
+            )
         mu = np.empty(periods.size)
         mu[order] = peak * k / fy
         return mu
@@ -484,8 +465,7 @@ def _search(solver, periods, elastic, substeps, targets):
         warnings.warn(
             f"some target ductilities were not reached with reduction factors up to {_LARGEST_REDUCTION:g}; "
             "NaN returned there",
-            RuntimeWarning,
-            stacklevel=4,
+            RuntimeWarning, stacklevel=4,
         )
     return reduction, achieved
 
@@ -524,8 +504,7 @@ def _refine(solver, periods, elastic, substeps, targets, x_lo, f_lo, x_hi, f_hi)
         warnings.warn(
             f"constant-ductility search stopped after {_SEARCH_PASSES} passes for {int(active.sum())} "
             f"entries; largest relative ductility miss {worst:.2g} (see `achieved_ductility`)",
-            RuntimeWarning,
-            stacklevel=5,
+            RuntimeWarning, stacklevel=5,
         )
     return np.exp(x_best).reshape(x_lo.shape), mu_best.reshape(x_lo.shape)
 
@@ -576,6 +555,14 @@ def _check_period(period: object) -> float:
     return float(value[0])
 
 
+def _check_settings(damping, hardening, method, max_step_ratio, tolerance, max_iterations):
+    """The settings shared by both public functions, checked in signature order."""
+    return (
+        float(_validate.dampings(damping, "damping")[0]), _check_hardening(hardening), _check_method(method),
+        _check_ratio(max_step_ratio), _check_tolerance(tolerance), _check_iterations(max_iterations),
+    )  # fmt: skip
+
+
 def _check_hardening(hardening: object) -> float:
     alpha = _validate.as_float(hardening, "hardening")
     if alpha < 0.0:
@@ -616,7 +603,8 @@ def _check_tolerance(tolerance: object) -> float:
 
 def _check_iterations(max_iterations: object) -> int:
     if isinstance(max_iterations, bool) or not isinstance(max_iterations, (int, np.integer)):
-        raise TypeError(f"`max_iterations` must be an integer, got {type(max_iterations).__name__} {max_iterations!r}")
+        kind = type(max_iterations).__name__
+        raise TypeError(f"`max_iterations` must be an integer, got {kind} {max_iterations!r}")
     if max_iterations < 1:
         raise ValueError(f"`max_iterations` must be >= 1, got {max_iterations!r}")
     return int(max_iterations)
@@ -644,6 +632,7 @@ def _check_ductilities(ductilities: ArrayLike) -> NDArray[np.float64]:
     if low.size:
         index = int(low[0])
         raise ValueError(
-            f"`ductilities` must be >= 1 (peak over yield displacement); index {index} holds {float(values[index])!r}"
+            f"`ductilities` must be >= 1 (peak over yield displacement); "
+            f"index {index} holds {float(values[index])!r}"
         )
     return values

@@ -1,4 +1,4 @@
-"""Frozen result objects of the yielding engine. They hold values, no numerics."""
+"""Results of the yielding engine: frozen value objects (no numerics) and its error and warning."""
 
 from __future__ import annotations
 
@@ -7,7 +7,24 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
-__all__ = ["DuctilitySpectrum", "InelasticResponse"]
+__all__ = ["ConvergenceError", "ConvergenceWarning", "DuctilitySpectrum", "InelasticResponse"]
+
+
+class ConvergenceError(RuntimeError):
+    """A step's Newton iterations did not converge even after splitting it.
+
+    Attributes ``time`` [s] and ``residual`` [m/s², per unit mass] locate the
+    failure.
+    """
+
+    def __init__(self, message: str, time: float, residual: float) -> None:
+        super().__init__(message)
+        self.time = time
+        self.residual = residual
+
+
+class ConvergenceWarning(UserWarning):
+    """Steps were split into smaller pieces so that Newton's method converged."""
 
 
 @dataclass(frozen=True, slots=True, eq=False)

@@ -1,0 +1,110 @@
+"""Speed of the yielding engine, measured in one run (best of several repeats).
+
+Prints
+- ns per oscillator-step of `inelastic_response` (one yielding and one
+  elastic oscillator, 8,000-step record);
+- wall time of `ductility_spectrum` for 100 periods × ductilities (1, 2, 4, 6)
+  on the same record, and ns per yielding oscillator-step inside it (time in
+  the compiled many-oscillator kernel divided by the oscillator-steps it ran);
+- the elastic spectrum of the same periods, for scale.
+
+Targets (issue 3): <= 10 ns per yielding oscillator-step inside the
+ductility spectrum; the spectrum in under 1 s on the 2-core machine.
+
+Run: python benchmarks/bench_inelastic.py
+"""
+
+from __future__ import annotations
+
+import os
+import time
+import warnings
+
+import numba
+import numpy as np
+
+from groundstep.core import Record, elastic_spectrum, inelastic_response, period_grid
+from groundstep.core import inelastic as _inelastic
+
+REPEATS = 5
+STEPS = 8000
+DT = 0.005  # s, so the record lasts 40 s
+
+
+def _record() -> Record:
+    """Invented record: seeded noise with a Kanai-Tajimi shape (Kanai 1957; Tajimi 1960), PGA 0.4 g."""
+    rng = np.random.default_rng(2024)
+    n = STEPS + 1
+    f = np.fft.rfftfreq(n, DT)
+    r = (f / 2.5) ** 2
+    shape = np.sqrt((1 + 1.44 * r) / ((1 - r) ** 2 + 1.44 * r))
+    a = np.fft.irfft(np.fft.rfft(rng.standard_normal(n)) * shape, n)
+    t = np.arange(n) * DT
+    a *= np.minimum(t / 3.0, 1.0) * np.exp(-np.maximum(t - 15.0, 0.0) / 8.0)
+    return Record(0.4 * a / np.abs(a).max(), DT, unit="g")
+
+
+def _best(call) -> float:
+    times = []
+    for _ in range(REPEATS):
+        began = time.perf_counter()
+        call()
+        times.append(time.perf_counter() - began)
+    return min(times)
+
+
+def main() -> None:
+    record = _record()
+    print(f"machine: {os.cpu_count()} cores, numba {numba.__version__} with {numba.get_num_threads()} threads")
+    print(f"record: {record.n} samples, dt = {record.dt} s; best of {REPEATS} repeats\n")
+    warnings.simplefilter("ignore")
+    steps = record.n - 1
+
+    # --- one oscillator ----------------------------------------------------
+    for label, reduction in (("yielding, R = 4", 4.0), ("elastic, R = 0.5", 0.5)):
+        inelastic_response(record, 1.0, reduction_factor=reduction)  # compile / load cache
+        seconds = _best(lambda: inelastic_response(record, 1.0, reduction_factor=reduction))
+        result = inelastic_response(record, 1.0, reduction_factor=reduction)
+        print(
+            f"inelastic_response T = 1 s, {label}: {seconds * 1e3:.2f} ms, "
+            f"{seconds / steps * 1e9:.1f} ns per oscillator-step "
+            f"(μ = {result.ductility:.2f}, {result.iterations / steps:.2f} Newton iterations per step; "
+            "includes the elastic run that sets R)"
+        )
+
+    # --- constant-ductility spectra ----------------------------------------
+    ductilities = [1.0, 2.0, 4.0, 6.0]
+    for shortest, longest in ((0.05, 5.0), (0.01, 10.0)):
+        periods = period_grid(shortest, longest, 100)
+
+        def run(stats=None):
+            return _inelastic._ductility_spectrum(
+                record, periods, ductilities, 0.05, 0.0, "average", 0.1, 1e-9, 20, stats
+            )
+
+        run()
+        walls, kernel_ns = [], []
+        for _ in range(REPEATS):
+            stats: dict = {}
+            began = time.perf_counter()
+            run(stats)
+            walls.append(time.perf_counter() - began)
+            kernel_ns.append(stats["kernel_seconds"] / stats["oscillator_steps"] * 1e9)
+        wall = min(walls)
+        elastic = _best(lambda: elastic_spectrum(record, periods, [0.05]))
+        substeps = _inelastic.substep_counts(record.dt, periods, _inelastic.resolve_method("average"), 0.1)
+        print(
+            f"\nductility_spectrum, 100 periods {shortest:g}-{longest:g} s (sub-steps up to {substeps.max()}), "
+            f"ductilities {ductilities}:"
+        )
+        print(f"  wall time            {wall:.3f} s   (target < 1 s)")
+        print(
+            f"  yielding oscillator-steps run: {stats['oscillator_steps'] / 1e6:.1f} million "
+            f"({stats['oscillator_steps'] / (steps * periods.size):.0f} per period-step)"
+        )
+        print(f"  per yielding oscillator-step {min(kernel_ns):.2f} ns (target <= 10 ns)")
+        print(f"  elastic_spectrum, same periods: {elastic * 1e3:.1f} ms (ratio {wall / elastic:.0f})")
+
+
+if __name__ == "__main__":
+    main()
