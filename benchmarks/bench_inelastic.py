@@ -24,6 +24,7 @@ import numba
 import numpy as np
 
 from groundstep.core import Record, elastic_spectrum, inelastic_response, period_grid
+from groundstep.core import _kernels_inelastic as _kernels
 from groundstep.core import inelastic as _inelastic
 
 REPEATS = 5
@@ -71,6 +72,18 @@ def main() -> None:
             f"(μ = {result.ductility:.2f}, {result.iterations / steps:.2f} Newton iterations per step; "
             "includes the elastic run that sets R)"
         )
+
+    # the history kernel alone (no elastic run, no post-processing)
+    n, omega = record.n, 2 * np.pi
+    out = [np.empty(n) for _ in range(6)]
+    info = np.zeros(_kernels.INFO_SIZE)
+    fy = 0.25 * inelastic_response(record, 1.0, reduction_factor=1.0).yield_force  # R = 4
+
+    def kernel():
+        _kernels.history(-record.accel, DT, 1, omega**2, 0.1 * omega, fy, 0.0, 0.25, 0.5, 1e-9, 20, 256, *out, info)
+
+    kernel()
+    print(f"  history kernel alone, R = 4: {_best(kernel) / steps * 1e9:.1f} ns per oscillator-step")
 
     # --- constant-ductility spectra ----------------------------------------
     ductilities = [1.0, 2.0, 4.0, 6.0]
