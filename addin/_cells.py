@@ -111,6 +111,16 @@ def periods(value: Any, what: str) -> NDArray[np.float64]:
     return _array(found, what, 1)
 
 
+def ductilities(value: Any, what: str) -> NDArray[np.float64]:
+    """Target ductilities of a range: numbers, each >= 1 (peak over yield displacement)."""
+    found, line, start = _values(value, what)
+    low = np.flatnonzero(found < 1.0)
+    if low.size:
+        index = int(low[0])
+        raise CellError(f"{line.position(start + index)} of {what} holds {found[index]:g}; ductilities must be >= 1")
+    return _array(found, what, 1)
+
+
 def damping(value: Any, what: str, default: Any = _REQUIRED) -> float:
     """A ratio of critical damping from one cell, with a hint for percentages."""
     return _check_damping(number(value, what, default), what, " ")

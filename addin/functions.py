@@ -34,7 +34,17 @@ from typing import Any, NamedTuple
 import numpy as np
 import xlwings as xw
 
-from groundstep.core import Record, SubstepWarning, __version__, elastic_spectrum, linear_response
+from groundstep.core import (
+    ConvergenceError,
+    ConvergenceWarning,
+    Record,
+    SubstepWarning,
+    __version__,
+    ductility_spectrum,
+    elastic_spectrum,
+    inelastic_response,
+    linear_response,
+)
 from groundstep.core._methods import Method, resolve_method, substep_counts
 from groundstep.core._units import (
     ACCELERATION_UNITS,
@@ -89,10 +99,17 @@ _DOC = {
     "headers": "TRUE adds a header row (and for tables a header column) with names and units. Default FALSE.",
     "yield_coefficient": "Yield strength over weight, Fy/(m g). Give this or reduction_factor.",
     "reduction_factor": "Strength reduction factor R = elastic strength / yield strength. Give this or yield_coefficient.",
-    "hardening": "Post-yield stiffness over initial stiffness. Default 0.",
-    "ductility_quantity": "ductility (default), peak displacement, yield displacement, residual displacement, hysteretic energy, yield coefficient or reduction factor.",
+    "hardening": "Post-yield stiffness over initial stiffness, in [0, 1). Default 0 (elastic-perfectly-plastic).",
+    "ductility_quantity": (
+        "ductility (default), peak displacement, yield displacement, residual displacement, hysteretic energy, "
+        "yield coefficient, reduction factor, peak displacement time [s], yield excursions or substeps."
+    ),
     "ductilities": "Target ductilities (>= 1): one column or row; they become the columns of the table.",
-    "ductility_spectrum_quantity": "yield coefficient (default), reduction factor or yield PSA.",
+    "ductility_spectrum_quantity": (
+        "yield coefficient (default), reduction factor, yield PSA, peak displacement or achieved ductility. "
+        "An unreachable target shows 'not reached'."
+    ),
+    "inelastic_method": "average (default) or linear; or a two-cell range holding Newmark beta and gamma.",
     "about_dt": "Optional time step [s]: with a period, reports the sub-steps used.",
     "about_unit": "Optional record unit: reports the units results come back in.",
     "about_period": "Optional period [s]: with a time step, reports the sub-steps used.",
@@ -106,7 +123,7 @@ def _worksheet(function: Callable[..., Any]) -> Callable[..., Any]:
     def guarded(*args: Any, **kwargs: Any) -> Any:
         try:
             return function(*args, **kwargs)
-        except (CellError, ValueError, TypeError) as exc:
+        except (CellError, ValueError, TypeError, ConvergenceError) as exc:
             return f"{ERROR_PREFIX}{exc}"
         except Exception as exc:  # noqa: BLE001 - a cell must never see a traceback
             return f"{ERROR_PREFIX}unexpected {type(exc).__name__}: {exc} (please report this)"
@@ -242,7 +259,7 @@ def STEP_HISTORY(
 @xw.arg("reduction_factor", doc=_DOC["reduction_factor"])
 @xw.arg("hardening", doc=_DOC["hardening"])
 @xw.arg("quantity", doc=_DOC["ductility_quantity"])
-@xw.arg("method", doc=_DOC["method"])
+@xw.arg("method", doc=_DOC["inelastic_method"])
 @xw.arg("accel_unit_out", doc=_DOC["accel_unit_out"])
 @xw.arg("length_unit_out", doc=_DOC["length_unit_out"])
 @_worksheet
@@ -261,8 +278,6 @@ def STEP_DUCTILITY(
     length_unit_out: Cell = None,
 ) -> Any:
     """Ductility demand (or another chosen result) of a yielding oscillator of given strength."""
-    from groundstep.core import inelastic_response
-
     record, key = _record(accel, dt, unit)
     name, attribute, kind = _choice(quantity, _DUCTILITY_QUANTITIES, "the quantity")
     units = _units(record, accel_unit_out, length_unit_out)
@@ -289,6 +304,7 @@ def STEP_DUCTILITY(
 @xw.arg("damping", doc=_DOC["damping"])
 @xw.arg("hardening", doc=_DOC["hardening"])
 @xw.arg("quantity", doc=_DOC["ductility_spectrum_quantity"])
+@xw.arg("method", doc=_DOC["inelastic_method"])
 @xw.arg("accel_unit_out", doc=_DOC["accel_unit_out"])
 @xw.arg("length_unit_out", doc=_DOC["length_unit_out"])
 @xw.arg("headers", doc=_DOC["headers"])
@@ -302,26 +318,28 @@ def STEP_DUCTILITY_SPECTRUM(
     damping: Cell = 0.05,
     hardening: Cell = 0.0,
     quantity: Cell = "yield coefficient",
+    method: Cell = "average",
     accel_unit_out: Cell = None,
     length_unit_out: Cell = None,
     headers: Cell = False,
 ) -> Any:
     """Constant-ductility spectrum table (spills): one row per period, one column per ductility."""
-    from groundstep.core import ductility_spectrum
-
     record, key = _record(accel, dt, unit)
     name, attribute, kind = _choice(quantity, _DUCTILITY_SPECTRUM_QUANTITIES, "the quantity")
     units = _units(record, accel_unit_out, length_unit_out)
-    grid = (_cells.periods(periods, "the periods range"), _cells.numbers(ductilities, "the ductilities range"))
+    grid = (_cells.periods(periods, "the periods range"), _cells.ductilities(ductilities, "the ductilities range"))
     ratio = _cells.damping(damping, "the damping")
     slope = _cells.nonnegative(hardening, "the hardening", 0.0)
+    resolved = _method(method)
     spectrum = _cache.RESULTS.get_or_compute(
-        ("ductility spectrum", key, *(tuple(values.tolist()) for values in grid), ratio, slope),
-        lambda: _quiet(ductility_spectrum, record, *grid, ratio, slope),
+        ("ductility spectrum", key, *(tuple(values.tolist()) for values in grid), ratio, slope, _method_key(resolved)),
+        # unreached targets come back as NaN and are shown as text, so the core's RuntimeWarning is not needed
+        lambda: _quiet(ductility_spectrum, record, *grid, ratio, slope, method=resolved, ignore=(RuntimeWarning,)),
     )
-    table = _to_unit(np.asarray(getattr(spectrum, attribute)), kind, units).T
+    table = _to_unit(getattr(spectrum, attribute), kind, units).T
     corner = f"{_label(name, kind, units)}: T [s] down, ductility across"
-    return _table(table, grid[0], grid[1], corner, _cells.flag(headers, "the headers option", False))
+    missing = "n/a" if attribute == "achieved_ductility" else "not reached"
+    return _table(table, grid[0], grid[1], corner, _cells.flag(headers, "the headers option", False), missing)
 
 
 @xw.func(category=CATEGORY)
@@ -414,11 +432,16 @@ _DUCTILITY_QUANTITIES = {
     "hysteretic energy": ("hysteretic energy per unit mass", "hysteretic_energy", "energy"),
     "yield coefficient": ("yield coefficient", "yield_coefficient", "ratio"),
     "reduction factor": ("reduction factor", "reduction_factor", "ratio"),
+    "peak displacement time": ("time of peak displacement", "time_of_peak_displacement", "time"),
+    "yield excursions": ("yield excursions", "yield_excursions", "count"),
+    "substeps": ("sub-steps", "substeps", "count"),
 }
 _DUCTILITY_SPECTRUM_QUANTITIES = {
     "yield coefficient": ("yield coefficient", "yield_coefficient", "ratio"),
     "reduction factor": ("reduction factor", "reduction_factor", "ratio"),
     "yield PSA": ("yield PSA", "yield_pseudo_acceleration", "acceleration"),
+    "peak displacement": ("peak displacement", "peak_displacement", "length"),
+    "achieved ductility": ("achieved ductility", "achieved_ductility", "ratio"),
 }
 
 
@@ -458,8 +481,13 @@ def _strength(yield_coefficient: Cell, reduction_factor: Cell) -> _Strength:
         _cells.number(yield_coefficient, "the yield coefficient", None),
         _cells.number(reduction_factor, "the reduction factor", None),
     )
-    if (given.yield_coefficient is None) == (given.reduction_factor is None):
-        raise CellError("give either a yield coefficient or a reduction factor, not both and not neither")
+    if given.yield_coefficient is None and given.reduction_factor is None:
+        raise CellError("give the strength: a yield coefficient or a reduction factor (both are blank)")
+    if given.yield_coefficient is not None and given.reduction_factor is not None:
+        raise CellError(
+            f"give a yield coefficient or a reduction factor, not both (got {given.yield_coefficient:g} "
+            f"and {given.reduction_factor:g})"
+        )
     return given
 
 
@@ -509,17 +537,26 @@ def _label(name: str, kind: str, units: _Units) -> str:
     return f"{name} [{unit}]"
 
 
-def _table(values: np.ndarray, rows: np.ndarray, columns: np.ndarray, corner: str, headers: bool) -> list[list[Any]]:
-    body = values.tolist()
+def _table(
+    values: np.ndarray, rows: np.ndarray, columns: np.ndarray, corner: str, headers: bool, missing: str = ""
+) -> list[list[Any]]:
+    """Rows of values (NaN shown as `missing`), optionally under a header row and beside a header column."""
+    body = [[value if value == value else missing for value in line] for line in values.tolist()]
     if not headers:
         return body
     return [[corner, *columns.tolist()], *([row, *line] for row, line in zip(rows.tolist(), body))]
 
 
-def _quiet(compute: Callable[..., Any], *args: Any, **kwargs: Any) -> Any:
-    """Call a core function with its SubstepWarning silenced."""
+def _quiet(compute: Callable[..., Any], *args: Any, ignore: tuple[type[Warning], ...] = (), **kwargs: Any) -> Any:
+    """Call a core function with the warnings the sheet reports otherwise silenced.
+
+    SubstepWarning (sub-steps are reported by STEP_ABOUT and the "substeps"
+    quantities) and ConvergenceWarning (the step was split and did converge)
+    always; `ignore` adds more for one call.
+    """
     with _WARNINGS_LOCK, warnings.catch_warnings():
-        warnings.simplefilter("ignore", SubstepWarning)
+        for category in (SubstepWarning, ConvergenceWarning, *ignore):
+            warnings.simplefilter("ignore", category)
         return compute(*args, **kwargs)
 
 

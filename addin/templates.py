@@ -294,7 +294,7 @@ def _yielding_sheet(sheet) -> None:
     sheet["G6"] = ArrayFormula(
         f"G6:K{6 + len(periods)}",
         f'=STEP_DUCTILITY_SPECTRUM({_RECORD},input_yield_periods,input_ductilities,input_yield_damping,0,'
-        f'"yield coefficient",{_UNITS},TRUE)',
+        f'"yield coefficient",input_method,{_UNITS},TRUE)',
     )
     sheet.column_dimensions["A"].width = 18
     sheet.column_dimensions["G"].width = 40

@@ -219,7 +219,9 @@ def reference_value(name, args):
 
         periods = numbers_in(args["periods"])
         ductilities = np.array(args["ductilities"][0])
-        spectrum = ductility_spectrum(RECORD, periods, ductilities, args["damping"], args["hardening"])
+        spectrum = ductility_spectrum(
+            RECORD, periods, ductilities, args["damping"], args["hardening"], method=args["method"]
+        )
         body = np.asarray(spectrum.yield_coefficient).T
         return [["corner", *ductilities]] + [[t, *row] for t, row in zip(periods, body)]
     raise AssertionError(f"no reference for {name}")
