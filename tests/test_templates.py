@@ -13,6 +13,8 @@ from __future__ import annotations
 
 import inspect
 import re
+import shutil
+import subprocess
 from pathlib import Path
 
 import numpy as np
@@ -78,6 +80,35 @@ def test_template_structure():
     for sheet in ("Input", "Record", "Spectrum", "Peaks", "Yielding"):
         assert any(cell.value == functions.CAUTION for row in book[sheet].iter_rows() for cell in row), sheet
     assert {name for name in book.defined_names} == set(templates.INPUT_NAMES)
+
+
+def _formulas(book):
+    """Every formula (array formulas with their range), spelled case-insensitively."""
+    found = {}
+    for where, value in cells_of(book)[1].items():
+        if isinstance(value, tuple):
+            found[where] = (value[1], value[2].lower().replace("true()", "true"))
+        elif isinstance(value, str) and value.startswith("="):
+            found[where] = (None, value.lower().replace("true()", "true"))
+    return found
+
+
+@pytest.mark.skipif(shutil.which("soffice") is None, reason="LibreOffice (soffice) is not installed")
+def test_template_survives_libreoffice(tmp_path):
+    """Real spreadsheet software opens the template and keeps its sheets, names, formulas and array ranges."""
+    name = templates.TEMPLATE_FILES[0]
+    profile = (tmp_path / "profile").as_uri()  # a profile of its own, so parallel runs do not collide
+    subprocess.run(
+        ["soffice", f"-env:UserInstallation={profile}", "--headless", "--convert-to", "xlsx",
+         "--outdir", str(tmp_path / "out"), str(COMMITTED / name)],
+        check=True, capture_output=True, timeout=180,
+    )  # fmt: skip
+    original = openpyxl.load_workbook(COMMITTED / name)
+    saved = openpyxl.load_workbook(tmp_path / "out" / name)
+    assert saved.sheetnames == original.sheetnames
+    assert {n: d.attr_text for n, d in saved.defined_names.items()} == cells_of(original)[2]
+    assert _formulas(saved) == _formulas(original)
+    assert (saved["xlwings.conf"]["A1"].value, saved["xlwings.conf"]["B1"].value) == ("UDF Modules", templates.UDF_MODULE)
 
 
 # ----------------------------------------------------------------------------- formula evaluation
