@@ -1,0 +1,187 @@
+"""Strength search behind `ductility_spectrum` (private).
+
+For each period and target ductility μ, the largest yield strength whose
+response reaches μ: a grid stage over ln R from R = 1 upward finds the first
+bracket, then regula falsi with the Illinois modification (Dowell & Jarratt
+1971) refines every bracket at once. Ductility of many (period, strength)
+lanes comes from one compiled kernel call per pass.
+"""
+
+from __future__ import annotations
+
+import time
+import warnings
+
+import numpy as np
+from numpy.typing import NDArray
+
+from . import _kernels_inelastic as _kernels
+from .inelastic_results import ConvergenceError
+
+#: Finest split of a step that fails to converge (a power of two).
+MAX_PIECES = 256
+#: Strength candidates per period in the first (grid) stage of the search.
+_GRID_CANDIDATES = 64
+#: The search stops when |μ - target| <= _SEARCH_RTOL·target ...
+_SEARCH_RTOL = 1e-6
+#: ... or when the bracket on ln R is narrower than this.
+_SEARCH_XTOL = 1e-10
+#: Largest number of refinement passes (Illinois steps).
+_SEARCH_PASSES = 60
+#: Largest reduction factor searched before a target counts as unreachable.
+_LARGEST_REDUCTION = 1e4
+
+
+class Solver:
+    """Ductility of many (period, strength) oscillators of one record and settings."""
+
+    def __init__(self, record, method, alpha, damping, relative_tolerance, max_iterations, stats):
+        self.record, self.method, self.alpha, self.damping = record, method, alpha, damping
+        self.relative_tolerance, self.max_iterations, self.stats = relative_tolerance, max_iterations, stats
+        self.load = -record.accel
+
+    def ductility(self, periods, fy, substeps):
+        """μ = max|u|·k/fy for each lane (arrays of equal length)."""
+        order = np.argsort(substeps, kind="stable")
+        periods, fy, substeps = periods[order], fy[order], substeps[order]
+        omega = 2.0 * np.pi / periods
+        k, c = omega * omega, 2.0 * self.damping * omega
+        accepted = self.relative_tolerance * (fy + self.record.pga)
+        starts = _chunk_starts(substeps)
+        peak, failed = np.empty(periods.size), np.empty(periods.size)
+        began = time.perf_counter()
+        _kernels.peaks(
+            self.load, self.record.dt, self.method.beta, self.method.gamma, self.alpha, k, c, fy,
+            accepted, substeps, starts, self.max_iterations, peak, failed,
+        )  # fmt: skip
+        if self.stats is not None:
+            self.stats["kernel_seconds"] = self.stats.get("kernel_seconds", 0.0) + time.perf_counter() - began
+            steps = int(np.sum(substeps)) * (self.record.n - 1)
+            self.stats["oscillator_steps"] = self.stats.get("oscillator_steps", 0) + steps
+        for lane in np.flatnonzero(failed):  # rare: repeat with step splitting
+            peak[lane] = self._robust_peak(
+                periods[lane], k[lane], c[lane], fy[lane], substeps[lane], accepted[lane]
+            )
+        mu = np.empty(periods.size)
+        mu[order] = peak * k / fy
+        return mu
+
+    def _robust_peak(self, period, k, c, fy, substeps, accepted):
+        n = self.record.n
+        u, v, fs, e1, e2, e3 = (np.empty(n) for _ in range(6))
+        info = np.zeros(_kernels.INFO_SIZE)
+        _kernels.history(
+            self.load, self.record.dt, int(substeps), k, c, fy, self.alpha, self.method.beta,
+            self.method.gamma, accepted, self.max_iterations, MAX_PIECES, u, v, fs, e1, e2, e3, info,
+        )  # fmt: skip
+        raise_if_failed(info, period, fy, accepted)
+        return float(np.max(np.abs(u)))
+
+
+def search(solver, periods, elastic, substeps, targets):
+    """Smallest R (largest strength) reaching each target: grid stage, then Illinois."""
+    n_t, n_p = targets.size, periods.size
+    x_lo = np.zeros((n_t, n_p))  # ln R at the bracket ends; μ(R = 1) = 1
+    f_lo = 1.0 - targets[:, None] * np.ones((1, n_p))
+    x_hi = np.full((n_t, n_p), np.nan)
+    f_hi = np.full((n_t, n_p), np.nan)
+    start, top = 1.0, 2.0 * targets.max() + 1.0
+    while True:
+        open_ = np.isnan(x_hi)
+        columns = np.flatnonzero(open_.any(axis=0))
+        if columns.size == 0 or start >= _LARGEST_REDUCTION:
+            break
+        grid = np.geomspace(start, top, _GRID_CANDIDATES + 1)[1:]
+        lanes_r = np.tile(grid, columns.size)
+        lanes_p = np.repeat(columns, grid.size)
+        mu = solver.ductility(periods[lanes_p], elastic[lanes_p] / lanes_r, substeps[lanes_p])
+        mu = mu.reshape(columns.size, grid.size)
+        for row in range(n_t):
+            still = open_[row, columns]
+            reached = mu >= targets[row]
+            hit = reached.any(axis=1) & still
+            first = np.argmax(reached, axis=1)
+            cols = columns[hit]
+            x_hi[row, cols] = np.log(grid[first[hit]])
+            f_hi[row, cols] = mu[hit, first[hit]] - targets[row]
+            before = first[hit] - 1
+            inside = before >= 0
+            x_lo[row, cols[inside]] = np.log(grid[before[inside]])
+            f_lo[row, cols[inside]] = mu[hit, before][inside] - targets[row]
+            miss = still & ~hit
+            x_lo[row, columns[miss]] = np.log(grid[-1])
+            f_lo[row, columns[miss]] = mu[miss, -1] - targets[row]
+        start, top = top, top * 4.0
+    reduction, achieved = _refine(solver, periods, elastic, substeps, targets, x_lo, f_lo, x_hi, f_hi)
+    if np.isnan(reduction).any():
+        warnings.warn(
+            f"some target ductilities were not reached with reduction factors up to {_LARGEST_REDUCTION:g}; "
+            "NaN returned there",
+            RuntimeWarning, stacklevel=4,
+        )
+    return reduction, achieved
+
+
+def _refine(solver, periods, elastic, substeps, targets, x_lo, f_lo, x_hi, f_hi):
+    """Regula falsi with the Illinois modification on each bracket, all brackets per pass."""
+    goal = np.broadcast_to(targets[:, None], x_lo.shape).ravel()
+    column = np.broadcast_to(np.arange(periods.size)[None, :], x_lo.shape).ravel()
+    xl, fl, xh, fh = (array.ravel().copy() for array in (x_lo, f_lo, x_hi, f_hi))
+    side = np.zeros(goal.size)
+    x_best = np.full(goal.size, np.nan)
+    mu_best = np.full(goal.size, np.nan)
+    active = ~np.isnan(xh)
+    for _ in range(_SEARCH_PASSES):
+        lanes = np.flatnonzero(active)
+        if lanes.size == 0:
+            break
+        width = xh[lanes] - xl[lanes]
+        x = xh[lanes] - fh[lanes] * width / (fh[lanes] - fl[lanes])
+        outside = ~((x > xl[lanes]) & (x < xh[lanes]))  # also catches NaN
+        x[outside] = 0.5 * (xl[lanes] + xh[lanes])[outside]
+        cols = column[lanes]
+        mu = solver.ductility(periods[cols], elastic[cols] / np.exp(x), substeps[cols])
+        f = mu - goal[lanes]
+        x_best[lanes], mu_best[lanes] = x, mu
+        up = f >= 0.0
+        hi_lanes, lo_lanes = lanes[up], lanes[~up]
+        fl[hi_lanes[side[hi_lanes] > 0]] *= 0.5
+        fh[lo_lanes[side[lo_lanes] < 0]] *= 0.5
+        xh[hi_lanes], fh[hi_lanes], side[hi_lanes] = x[up], f[up], 1.0
+        xl[lo_lanes], fl[lo_lanes], side[lo_lanes] = x[~up], f[~up], -1.0
+        done = (np.abs(f) <= _SEARCH_RTOL * goal[lanes]) | (xh[lanes] - xl[lanes] <= _SEARCH_XTOL)
+        active[lanes[done]] = False
+    if active.any():
+        worst = float(np.max(np.abs(mu_best[active] - goal[active]) / goal[active]))
+        warnings.warn(
+            f"constant-ductility search stopped after {_SEARCH_PASSES} passes for {int(active.sum())} "
+            f"entries; largest relative ductility miss {worst:.2g} (see `achieved_ductility`)",
+            RuntimeWarning, stacklevel=5,
+        )
+    return np.exp(x_best).reshape(x_lo.shape), mu_best.reshape(x_lo.shape)
+
+
+def _chunk_starts(substeps: NDArray[np.int64]) -> NDArray[np.int64]:
+    """Chunk boundaries: at most CHUNK lanes, one sub-step count per chunk (lanes sorted)."""
+    starts = [0]
+    n = substeps.size
+    while starts[-1] < n:
+        lo = starts[-1]
+        same = int(np.searchsorted(substeps, substeps[lo], side="right"))
+        starts.append(min(lo + _kernels.CHUNK, same))
+    return np.array(starts, dtype=np.int64)
+
+
+def raise_if_failed(info, period, fy, accepted) -> None:
+    if info[_kernels.INFO_STATUS] == 0.0:
+        return
+    when = float(info[_kernels.INFO_FAIL_TIME])
+    residual = float(info[_kernels.INFO_FAIL_RESIDUAL])
+    raise ConvergenceError(
+        f"Newton iterations did not converge at t = {when:.6g} s (period {period:g} s, yield force "
+        f"{fy:.6g} m/s²): residual force {residual:.3g} m/s² per unit mass exceeds {accepted:.3g} "
+        f"even with the step split into {MAX_PIECES} pieces; raise `max_iterations`, loosen "
+        "`tolerance` or lower `max_step_ratio`",
+        when,
+        residual,
+    )
