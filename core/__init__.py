@@ -12,8 +12,10 @@ from ._units import ACCELERATION_UNITS, LENGTH_UNITS, STANDARD_GRAVITY
 from .inelastic import ConvergenceError, ConvergenceWarning, ductility_spectrum, inelastic_response
 from .inelastic_results import DuctilitySpectrum, InelasticResponse
 from .linear import DEFAULT_STEP_RATIO, SubstepWarning, elastic_spectrum, linear_response, period_grid
+from .measures import arias_intensity, normalised_arias, significant_duration
 from .record import Record, RecordTextWarning
 from .results import ElasticSpectrum, LinearResponse
+from .synthetic import filtered_noise, jennings_envelope, kanai_tajimi_psd, synthetic_record
 
 try:
     __version__ = version("groundstep")
@@ -37,9 +39,16 @@ __all__ = [
     "STANDARD_GRAVITY",
     "SubstepWarning",
     "__version__",
+    "arias_intensity",
     "ductility_spectrum",
     "elastic_spectrum",
+    "filtered_noise",
     "inelastic_response",
+    "jennings_envelope",
+    "kanai_tajimi_psd",
     "linear_response",
+    "normalised_arias",
     "period_grid",
+    "significant_duration",
+    "synthetic_record",
 ]

@@ -68,6 +68,21 @@ def normalised_arias(record: Record) -> NDArray[np.float64]:
 
     A record of zeros gives zeros. See `arias_intensity` (Arias 1970).
 
+    Parameters
+    ----------
+    record : Record
+        Ground acceleration.
+
+    Returns
+    -------
+    ndarray, shape (n,)
+        I_A(t) / I_A(end), rising from 0 to 1 [-].
+
+    References
+    ----------
+    Arias, A. (1970). A measure of earthquake intensity. In R. J. Hansen (ed.),
+    Seismic Design for Nuclear Power Plants, MIT Press, 438-483.
+
     Examples
     --------
     >>> normalised_arias(Record([0.0, 1.0, 1.0], dt=1.0, unit="m/s2"))
