@@ -252,9 +252,13 @@ def _run_demo(args, command_line: str) -> int:
     from .report import Oscillator, ReportSettings, build_report
     from .workbook import write_report
 
+    from groundstep.core._warm import warm_up
+
     started = time.perf_counter()
     out = Path(args.out)
     _refuse_existing([out], args.force)
+    warm_seconds = warm_up()["total"]  # as `groundstep warm`: compiles once, then loads from the cache
+    print(f"numerical kernels ready in {warm_seconds:.2f} s (compiled on first use, then cached on disk)")
     record = synthetic_record(20.0, 0.01, pga=0.3, unit="g", seed=args.seed, name=f"demo record (seed {args.seed})")
     base = ReportSettings(
         oscillators=tuple(Oscillator(*item) for item in _DEMO_STRUCTURES),
