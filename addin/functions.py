@@ -56,6 +56,7 @@ from groundstep.core.linear import DEFAULT_STEP_RATIO
 
 from . import _cache, _cells
 from ._cells import CellError
+from .layout import CAUTION
 
 __all__ = [
     "CATEGORY",
@@ -73,8 +74,7 @@ __all__ = [
 CATEGORY = "groundstep"
 #: Every error message returned to a cell starts with this text.
 ERROR_PREFIX = "STEP error: "
-#: Shown by STEP_ABOUT and on every template.
-CAUTION = "Results support, not replace, engineering judgement; local codes and licensed practice govern."
+# CAUTION (shown by STEP_ABOUT and on every template) is the result workbook's text: one source.
 
 # Sub-stepping is reported through STEP_ABOUT and the "substeps" quantity, so the
 # core's SubstepWarning is silenced around each core call (see `_quiet`). Warning
