@@ -59,7 +59,7 @@ def newmark(omega, zeta, h, beta, gamma) -> NDArray[np.float64]:
 
 
 def exact(omega, zeta, h) -> NDArray[np.float64]:
-    """Map coefficients of the exact solution for load linear over a step `h`.
+    """Map coefficients of the exact solution for load linear over a step `h` (scalar or per oscillator).
 
     Notes
     -----
@@ -82,16 +82,16 @@ def exact(omega, zeta, h) -> NDArray[np.float64]:
     """
     omega = np.asarray(omega, dtype=np.float64)
     zeta = np.asarray(zeta, dtype=np.float64)
-    omega, zeta = np.broadcast_arrays(omega, zeta)
+    omega, zeta, step = np.broadcast_arrays(omega, zeta, np.asarray(h, dtype=np.float64))
     n = omega.shape[0]
     out = np.empty((N_COEFFICIENTS, n))
     c = 2.0 * zeta * omega
     k = omega * omega
-    series = omega * h <= _SERIES_LIMIT
+    series = omega * step <= _SERIES_LIMIT
     closed = ~series
 
     # --- closed form (Nigam & Jennings 1969) -------------------------------
-    w, z, cc, kk = omega[closed], zeta[closed], c[closed], k[closed]
+    w, z, cc, kk, h = omega[closed], zeta[closed], c[closed], k[closed], step[closed]
     wd = w * np.sqrt(1.0 - z * z)
     e = np.exp(-z * w * h)
     sn = np.sin(wd * h)
@@ -109,7 +109,7 @@ def exact(omega, zeta, h) -> NDArray[np.float64]:
     out[4:8, closed] = g1u - g2u / h, g2u / h, g1v - g2v / h, g2v / h
 
     # --- power series -------------------------------------------------------
-    cc, kk = c[series], k[series]
+    cc, kk, h = c[series], k[series], step[series]
     m = series.sum()
     # z = (Fh)ⁿ e1 and y = (Fh)ⁿ e2, accumulated with 1/n!, 1/(n+1)!, 1/(n+2)!
     zu, zv = np.ones(m), np.zeros(m)

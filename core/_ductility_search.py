@@ -13,9 +13,9 @@ import time
 import warnings
 
 import numpy as np
-from numpy.typing import NDArray
 
 from . import _kernels_inelastic as _kernels
+from ._kernels import chunk_starts
 from .inelastic_results import ConvergenceError
 
 #: Finest split of a step that fails to converge (a power of two).
@@ -47,7 +47,7 @@ class Solver:
         omega = 2.0 * np.pi / periods
         k, c = omega * omega, 2.0 * self.damping * omega
         accepted = self.relative_tolerance * (fy + self.record.pga)
-        starts = _chunk_starts(substeps)
+        starts = chunk_starts(substeps, _kernels.CHUNK)
         peak, failed = np.empty(periods.size), np.empty(periods.size)
         began = time.perf_counter()
         _kernels.peaks(
@@ -159,17 +159,6 @@ def _refine(solver, periods, elastic, substeps, targets, x_lo, f_lo, x_hi, f_hi)
             RuntimeWarning, stacklevel=5,
         )
     return np.exp(x_best).reshape(x_lo.shape), mu_best.reshape(x_lo.shape)
-
-
-def _chunk_starts(substeps: NDArray[np.int64]) -> NDArray[np.int64]:
-    """Chunk boundaries: at most CHUNK lanes, one sub-step count per chunk (lanes sorted)."""
-    starts = [0]
-    n = substeps.size
-    while starts[-1] < n:
-        lo = starts[-1]
-        same = int(np.searchsorted(substeps, substeps[lo], side="right"))
-        starts.append(min(lo + _kernels.CHUNK, same))
-    return np.array(starts, dtype=np.int64)
 
 
 def raise_if_failed(info, period, fy, accepted) -> None:

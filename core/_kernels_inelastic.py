@@ -41,7 +41,7 @@ from numba import njit, prange
 #: and constant vectors of this length stay in the L1 cache and vectorise.
 CHUNK = 64
 #: Length of the `info` array filled by `history`; indices below.
-INFO_SIZE = 8
+INFO_SIZE = 10
 INFO_STATUS = 0  # 0 converged, 1 a step failed even after the finest split
 INFO_FAIL_TIME = 1  # start time [s] of the piece that failed
 INFO_FAIL_RESIDUAL = 2  # |R| [m/s²] after the last iteration there
@@ -50,6 +50,8 @@ INFO_EXCURSIONS = 4  # entries into a yielding branch
 INFO_RETRIED = 5  # sub-steps that had to be split to converge
 INFO_PIECES = 6  # largest split used
 INFO_YIELDING = 7  # sub-steps that ended on a yielding branch
+INFO_PEAK = 8  # max |u| [m] over every sub-step
+INFO_PEAK_TIME = 9  # first time [s] of that peak
 
 
 @njit(cache=True, inline="always")
@@ -126,6 +128,9 @@ def history(load, dt, substeps, k, c, fy, hardening, beta, gamma, tol, max_iter,
             u, v, fs, e_input, e_damping, e_spring, info):  # fmt: skip
     """Histories of one yielding oscillator at the record's sample times.
 
+    The peak |u| and its time are read at every sub-step (info[INFO_PEAK],
+    info[INFO_PEAK_TIME]), as in the linear kernels.
+
     Parameters
     ----------
     load : (n,) p = -ü_g [m/s²]
@@ -151,6 +156,7 @@ def history(load, dt, substeps, k, c, fy, hardening, beta, gamma, tol, max_iter,
     ui, vi, ai, fi, bi = 0.0, 0.0, load[0], 0.0, 0.0
     ei, ed, es = 0.0, 0.0, 0.0
     iterations, excursions, retried, pieces_used, yielding = 0, 0, 0, 1, 0
+    peak, peak_time = 0.0, 0.0
     u[0], v[0], fs[0] = 0.0, 0.0, 0.0
     e_input[0], e_damping[0], e_spring[0] = 0.0, 0.0, 0.0
     info[INFO_STATUS] = 0.0
@@ -203,6 +209,9 @@ def history(load, dt, substeps, k, c, fy, hardening, beta, gamma, tol, max_iter,
                 yielding += 1
             ui, vi, ai, fi, bi = su, sv, sa, sf, sb
             ei, ed, es = se, sd, ss
+            if abs(ui) > peak:
+                peak = abs(ui)
+                peak_time = (i + (sub + 1) / substeps) * dt
         u[i + 1], v[i + 1], fs[i + 1] = ui, vi, fi
         e_input[i + 1], e_damping[i + 1], e_spring[i + 1] = ei, ed, es
     info[INFO_ITERATIONS] = iterations
@@ -210,6 +219,8 @@ def history(load, dt, substeps, k, c, fy, hardening, beta, gamma, tol, max_iter,
     info[INFO_RETRIED] = retried
     info[INFO_PIECES] = pieces_used
     info[INFO_YIELDING] = yielding
+    info[INFO_PEAK] = peak
+    info[INFO_PEAK_TIME] = peak_time
 
 
 # Rows of the per-chunk work array of `peaks` (state, iterates, constants).
@@ -306,8 +317,7 @@ def peaks(load, dt, beta, gamma, hardening, k, c, fy, tol, substeps, starts, max
                     w[_V, j] = g_coef * dj + w[_VQ, j]
                     w[_F, j] = w[_F_NEW, j]
                     w[_INV_T, j] = w[_INV_NEW, j]
-            for j in range(lanes):
-                w[_PEAK, j] = max(w[_PEAK, j], abs(w[_U, j]))
+                    w[_PEAK, j] = max(w[_PEAK, j], abs(w[_U, j]))  # read at every sub-step
         for j in range(m):
             peak[lo + j] = w[_PEAK, j]
             failed[lo + j] = w[_BAD, j]

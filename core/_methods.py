@@ -92,16 +92,17 @@ def resolve_method(method: object) -> Method:
 def substep_counts(dt: float, periods, method: Method, max_step_ratio: float | None):
     """Sub-steps per record step that keep h/T within the accuracy and stability limits.
 
-    h = dt / s must satisfy h/T <= `max_step_ratio` (accuracy; ``None`` turns
-    it off) and h/T <= the method's stability limit (never turned off). The
-    exact method and rigid oscillators (T = 0) need one step.
+    h = dt / s must satisfy h/T <= `max_step_ratio` (``None`` turns it off)
+    and, for Newmark methods, h/T <= the method's stability limit (never
+    turned off). For Newmark methods the ratio limits the integration error;
+    for the exact method, whose states are exact at any step, it sets how
+    often peaks are read between samples. Rigid oscillators (T = 0) need one
+    step.
     """
     import numpy as np
 
     periods = np.asarray(periods, dtype=np.float64)
     counts = np.ones(periods.shape, dtype=np.int64)
-    if not method.is_newmark:
-        return counts
     limit = min(math.inf if max_step_ratio is None else max_step_ratio, method.stability_limit)
     if math.isinf(limit):
         return counts

@@ -201,8 +201,7 @@ def inelastic_response(
     imbalance = np.max(np.abs(e_input - (kinetic + e_damping + e_spring)))
     scale = np.max(np.abs(e_input))
     balance_error = float(imbalance / scale) if scale > 0.0 else 0.0
-    where = int(np.argmax(np.abs(u)))
-    peak = float(abs(u[where]))
+    peak = float(info[_kernels.INFO_PEAK])  # read at every sub-step, as the elastic force is
     yield_displacement = fy / k
     time_axis = record.time
     histories = (e_input, kinetic, e_damping, strain, hysteretic) if energy_histories else (None,) * 5
@@ -210,7 +209,7 @@ def inelastic_response(
         period, damping, alpha, resolved.name, resolved.beta, resolved.gamma, record.dt, substeps,
         fy, fy / STANDARD_GRAVITY, elastic_force / fy, elastic_force,
         time_axis, u, v, -(c * v + fs), fs,
-        peak, float(time_axis[where]), yield_displacement, peak / yield_displacement,
+        peak, float(info[_kernels.INFO_PEAK_TIME]), yield_displacement, peak / yield_displacement,
         float(u[-1] - fs[-1] / k), int(info[_kernels.INFO_EXCURSIONS]),
         float(e_input[-1]), float(kinetic[-1]), float(e_damping[-1]), float(strain[-1]),
         float(hysteretic[-1]), *histories,

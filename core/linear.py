@@ -49,10 +49,12 @@ def linear_response(
         (β = 1/6, γ = 1/2), any other Newmark pair, or the exact solution for
         excitation linear between samples.
     max_step_ratio : float or None, default 0.1
-        Largest Δt/T for Newmark methods; a longer record step is split into
-        equal sub-steps with the excitation interpolated linearly. ``None``
-        turns the accuracy limit off; the stability limit of a conditionally
-        stable method (Δt/T <= √3/π for linear acceleration) always holds.
+        Largest Δt/T: a longer record step is split into equal sub-steps
+        with the excitation interpolated linearly. For Newmark methods this
+        bounds the integration error; for ``"exact"`` it sets how often
+        peaks are read between samples. ``None`` turns the limit off; the
+        stability limit of a conditionally stable method (Δt/T <= √3/π for
+        linear acceleration) always holds.
     initial_displacement : float, default 0
         u(0) [m].
     initial_velocity : float, default 0
@@ -79,7 +81,9 @@ def linear_response(
     Notes
     -----
     Equation of motion per unit mass: ü + 2ζωu̇ + ω²u = -ü_g, ω = 2π/T.
-    Peaks are taken over the record's sample times.
+    Histories are returned at the record's sample times; peaks (and their
+    times) are read at every sub-step, as if the record had been resampled
+    linearly onto the sub-step grid.
 
     References
     ----------
@@ -126,7 +130,7 @@ def linear_response(
             0.0, float(abs(total[index])),
         )  # fmt: skip
 
-    coef, substeps = _map_coefficients(record.dt, np.array([period]), np.array([damping]), resolved, ratio)
+    coef, substeps = _step_coefficients(record.dt, np.array([period]), np.array([damping]), resolved, ratio)
     if substeps[0] > 1:
         warnings.warn(
             f"period {period:g} s with record step {record.dt:g} s: each step split into "
@@ -136,16 +140,17 @@ def linear_response(
         )
     displacement = np.empty(record.n)
     velocity = np.empty(record.n)
-    _kernels.history(load, coef, u0, v0, displacement, velocity)
+    _kernels.history(load, _kernels.compose(coef, substeps), u0, v0, displacement, velocity)
     total = -(coef[8, 0] * velocity + coef[9, 0] * displacement)
-    peaks = [np.abs(displacement), np.abs(velocity), np.abs(total)]
-    where = [int(np.argmax(values)) for values in peaks]
-    sd, sv, sa = (float(values[index]) for values, index in zip(peaks, where))
+    found = np.empty(6)
+    _kernels.substep_peaks(load, coef, int(substeps[0]), u0, v0, found)
+    sd, sv, sa = (float(value) for value in found[:3])
+    when = [float(steps * record.dt) for steps in found[3:]]
     omega = 2.0 * math.pi / period
     return LinearResponse(
         period, damping, resolved.name, resolved.beta, resolved.gamma, record.dt, int(substeps[0]),
         time, displacement, velocity, total,
-        sd, sv, sa, float(time[where[0]]), float(time[where[1]]), float(time[where[2]]),
+        sd, sv, sa, when[0], when[1], when[2],
         omega * sd, omega * omega * sd,
     )  # fmt: skip
 
@@ -203,7 +208,7 @@ def elastic_spectrum(
     >>> import numpy as np
     >>> from groundstep.core import Record, elastic_spectrum, period_grid
     >>> rec = Record(0.1 * np.sin(np.arange(500) * 0.05), dt=0.01)
-    >>> spec = elastic_spectrum(rec, period_grid(0.05, 4.0, 50), [0.02, 0.05])
+    >>> spec = elastic_spectrum(rec, period_grid(0.1, 4.0, 50), [0.02, 0.05])  # Δt/T <= 0.1: no sub-steps
     >>> spec.psa.shape
     (2, 50)
     """
@@ -219,12 +224,16 @@ def elastic_spectrum(
     peaks = np.zeros((3, flat_t.size))
     substeps = np.ones(flat_t.size, dtype=np.int64)
     if moving.any():
-        coef, used = _map_coefficients(record.dt, flat_t[moving], flat_z[moving], resolved, ratio)
+        coef, used = _step_coefficients(record.dt, flat_t[moving], flat_z[moving], resolved, ratio)
         substeps[moving] = used
-        found = np.empty((3, coef.shape[1]))
-        zeros = np.zeros(coef.shape[1])
-        _kernels.peaks(-record.accel, coef, zeros, zeros, found)
-        peaks[:, moving] = found
+        order = np.argsort(used, kind="stable")  # chunks of equal sub-step count
+        found = np.empty((3, order.size))
+        zeros = np.zeros(order.size)
+        starts = _kernels.chunk_starts(used[order])
+        _kernels.peaks(-record.accel, np.ascontiguousarray(coef[:, order]), used[order], starts, zeros, zeros, found)
+        unsorted = np.empty_like(found)
+        unsorted[:, order] = found
+        peaks[:, moving] = unsorted
     peaks[2, ~moving] = record.pga
     if substeps.max() > 1:
         split = int(np.count_nonzero(substeps > 1))
@@ -293,13 +302,13 @@ def _limit_text(method: Method, ratio: float | None) -> str:
     return f"{limit:.4g}"
 
 
-def _map_coefficients(
+def _step_coefficients(
     dt: float, periods: NDArray[np.float64], dampings: NDArray[np.float64], method: Method, ratio: float | None
 ) -> tuple[NDArray[np.float64], NDArray[np.int64]]:
-    """Per-record-step map coefficients (10, n) and the sub-steps behind them."""
+    """Map coefficients (10, n) of ONE sub-step h = dt/s, and the sub-step counts s."""
     omega = 2.0 * np.pi / periods
-    if not method.is_newmark:
-        return _coefficients.exact(omega, dampings, dt), np.ones(periods.size, dtype=np.int64)
     substeps = substep_counts(dt, periods, method, ratio)
-    one_step = _coefficients.newmark(omega, dampings, dt / substeps, method.beta, method.gamma)
-    return _kernels.compose(one_step, substeps), substeps
+    step = dt / substeps
+    if not method.is_newmark:
+        return _coefficients.exact(omega, dampings, step), substeps
+    return _coefficients.newmark(omega, dampings, step, method.beta, method.gamma), substeps

@@ -14,8 +14,9 @@ __all__ = ["ElasticSpectrum", "LinearResponse"]
 class LinearResponse:
     """Response of one linear oscillator, returned by `linear_response`.
 
-    Histories are at the record's sample times; peaks are max |·| over those
-    samples, and each ``time_of_peak_*`` is the first time [s] it occurs.
+    Histories are at the record's sample times; peaks are max |·| over every
+    sub-step (the samples themselves when no sub-steps were needed), and
+    each ``time_of_peak_*`` is the first time [s] it occurs.
 
     Attributes
     ----------
@@ -28,7 +29,8 @@ class LinearResponse:
     dt : float
         Record time step [s].
     substeps : int
-        Sub-steps per record step (1 when none were needed).
+        Sub-steps per record step (1 when none were needed); peaks are read
+        at every sub-step.
     time, displacement, velocity, total_acceleration : ndarray (n,)
         t [s], relative u [m], relative u̇ [m/s], ü + ü_g [m/s²].
     peak_displacement, peak_velocity, peak_total_acceleration : float

@@ -113,7 +113,9 @@ def test_exact_matches_scipy_lsim(seed, period, damping):
     )
     x0 = np.array([0.001, -0.01])
     _, _, states = signal.lsim(system, -record.accel, record.time, X0=x0, interp=True)
-    result = linear_response(record, period, damping, "exact", initial_displacement=x0[0], initial_velocity=x0[1])
+    result = linear_response(
+        record, period, damping, "exact", max_step_ratio=None, initial_displacement=x0[0], initial_velocity=x0[1]
+    )
     # both exact for piecewise-linear input; differences are round-off of two algorithms
     scale_u = np.max(np.abs(states[:, 0]))
     scale_v = np.max(np.abs(states[:, 1]))
@@ -171,12 +173,42 @@ def test_substeps_equal_stepping_an_interpolated_record():
     scale = np.max(np.abs(reference.displacement))
     assert_allclose(result.displacement, reference.displacement[::4], rtol=0, atol=1e-12 * scale)
     assert_allclose(result.velocity, reference.velocity[::4], rtol=0, atol=1e-11 * np.max(np.abs(reference.velocity)))
+    # peaks are read at every sub-step, as on the resampled record
+    assert result.peak_displacement == pytest.approx(reference.peak_displacement, rel=1e-12)
+    assert result.peak_velocity == pytest.approx(reference.peak_velocity, rel=1e-12)
+    assert result.peak_total_acceleration == pytest.approx(reference.peak_total_acceleration, rel=1e-12)
+    assert result.time_of_peak_displacement == pytest.approx(reference.time_of_peak_displacement, rel=1e-12)
+    spectrum = _quiet(elastic_spectrum, record, [period], [0.05], "average")
+    assert spectrum.sd[0, 0] == pytest.approx(reference.peak_displacement, rel=1e-12)
+    assert spectrum.sa[0, 0] == pytest.approx(reference.peak_total_acceleration, rel=1e-12)
+
+
+@pytest.mark.parametrize("method", ["exact", "linear"])
+def test_short_period_peaks_are_read_between_samples(method):
+    """A short period's peaks come from the sub-step grid, equal to those of the resampled record."""
+    record = _random_record(8, n=300, dt=0.02)
+    period, s = 0.03, 7  # Δt/T = 0.67 -> 7 sub-steps at the default limit 0.1
+    spectrum = _quiet(elastic_spectrum, record, [period], [0.02], method)
+    assert spectrum.substeps[0, 0] == s
+    fine_time = np.arange((record.n - 1) * s + 1) * (record.dt / s)
+    fine = Record(np.interp(fine_time, record.time, record.accel), dt=record.dt / s, unit="m/s2")
+    reference = linear_response(fine, period, 0.02, method, max_step_ratio=None)
+    assert reference.substeps == 1
+    for got, expected in [
+        (spectrum.sd, reference.peak_displacement),
+        (spectrum.sv, reference.peak_velocity),
+        (spectrum.sa, reference.peak_total_acceleration),
+    ]:
+        assert got[0, 0] == pytest.approx(expected, rel=1e-11)  # same arithmetic, other order
+    # reading only at the samples misses part of the peak for this oscillator
+    coarse = _quiet(elastic_spectrum, record, [period], [0.02], method, max_step_ratio=None)
+    assert coarse.sd[0, 0] < spectrum.sd[0, 0]
 
 
 def test_substepping_brings_newmark_close_to_exact():
     """With sub-steps, a short-period oscillator on a coarse record is close to the exact answer."""
     record = _random_record(11, n=500, dt=0.02)
-    exact = linear_response(record, 0.04, 0.05, "exact").peak_displacement
+    exact = _quiet(linear_response, record, 0.04, 0.05, "exact", max_step_ratio=0.02).peak_displacement
     fine = _quiet(linear_response, record, 0.04, 0.05, "average", max_step_ratio=0.02).peak_displacement
     coarse = linear_response(record, 0.04, 0.05, "average", max_step_ratio=None).peak_displacement
     # at Δt/T = 0.02 the period error is (2π·0.02)²/12 ≈ 1.3e-3; 1 % is generous
@@ -266,7 +298,7 @@ def test_short_period_psa_approaches_pga():
     dt = 0.005
     t = np.arange(0.0, 8.0, dt)
     record = Record(np.sin(2 * np.pi * 1.3 * t) * np.exp(-0.2 * t) + 0.3 * np.sin(2 * np.pi * 4.1 * t), dt, "m/s2")
-    spectrum = elastic_spectrum(record, [0.002], [0.05], "exact")
+    spectrum = elastic_spectrum(record, [0.002], [0.05], "exact", max_step_ratio=None)
     # quasi-static error ≈ (f_ground / f_oscillator)² = (4.1 / 500)² ≈ 7e-5, plus sampling of the crest
     assert spectrum.psa[0, 0] == pytest.approx(record.pga, rel=1e-3)
 
