@@ -89,6 +89,12 @@ def resolve_method(method: object) -> Method:
     return Method("newmark", beta, gamma)
 
 
+#: Most sub-steps per record step: 10,000 keeps a 20,000-sample record under
+#: about a second per oscillator and admits periods down to dt/1000 at the
+#: default ratio 0.1 (1e-5 s for dt = 0.01 s).
+MAX_SUBSTEPS = 10_000
+
+
 def substep_counts(dt: float, periods, method: Method, max_step_ratio: float | None):
     """Sub-steps per record step that keep h/T within the accuracy and stability limits.
 
@@ -98,6 +104,11 @@ def substep_counts(dt: float, periods, method: Method, max_step_ratio: float | N
     for the exact method, whose states are exact at any step, it sets how
     often peaks are read between samples. Rigid oscillators (T = 0) need one
     step.
+
+    Raises
+    ------
+    ValueError
+        When a period would need more than `MAX_SUBSTEPS` sub-steps.
     """
     import numpy as np
 
@@ -109,5 +120,13 @@ def substep_counts(dt: float, periods, method: Method, max_step_ratio: float | N
     moving = periods > 0.0
     # 1e-12 keeps a ratio that is exactly at the limit from rounding up to one more step
     needed = np.ceil(dt / (limit * periods[moving]) * (1.0 - 1e-12))
+    if needed.size and needed.max() > MAX_SUBSTEPS:
+        index = int(np.flatnonzero(moving)[np.argmax(needed)])
+        raise ValueError(
+            f"period {float(periods.flat[index]):g} s would need {needed.max():.3g} sub-steps "
+            f"of the {dt:g} s record step to keep Δt/T <= {limit:.4g}; more than {MAX_SUBSTEPS}. "
+            "An oscillator this stiff moves with the ground: use period 0 (rigid, PSA = PGA)"
+            + ("" if method.stability_limit < math.inf else " or a larger `max_step_ratio`")
+        )
     counts[moving] = np.maximum(needed, 1).astype(np.int64)
     return counts

@@ -365,6 +365,16 @@ def test_bad_linear_input_is_named(kwargs, error, message):
         linear_response(record, **arguments)
 
 
+@pytest.mark.parametrize("method", ["average", "linear", "exact"])
+def test_absurdly_short_period_is_refused_with_advice(method):
+    """A period needing more than 10,000 sub-steps is refused, pointing to period 0 (rigid)."""
+    record = _random_record(1, n=50)
+    with pytest.raises(ValueError, match=r"period 1e-07 s would need 1e\+06 sub-steps .* use period 0 \(rigid"):
+        elastic_spectrum(record, [0.5, 1e-7])
+    with pytest.raises(ValueError, match=r"period 1e-07 s would need"):
+        linear_response(record, 1e-7, 0.05, method)
+
+
 def test_record_must_be_a_record():
     """A bare array in place of a Record gets a message saying how to build one."""
     with pytest.raises(TypeError, match=r"`record` must be a groundstep Record, got ndarray"):
