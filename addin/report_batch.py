@@ -26,9 +26,12 @@ __all__ = ["plan_outputs", "run_batch", "spectrum_job"]
 
 
 def plan_outputs(records: Sequence[str], out_dir: Path, fmt: str) -> list[tuple[Path, Path]]:
-    """(input, output) pairs: ``OUT_DIR/STEM.spectrum.FMT``; duplicate stems are refused."""
-    if not out_dir.is_dir():
-        raise FileNotFoundError(f"output folder {str(out_dir)!r} does not exist")
+    """(input, output) pairs: ``OUT_DIR/STEM.spectrum.FMT``; duplicate stems are refused.
+
+    The output folder is created (with its parents) once every record file is found.
+    """
+    if out_dir.exists() and not out_dir.is_dir():
+        raise FileExistsError(f"output folder {str(out_dir)!r} is a file")
     jobs: list[tuple[Path, Path]] = []
     seen: dict[Path, Path] = {}
     for name in records:
@@ -40,6 +43,7 @@ def plan_outputs(records: Sequence[str], out_dir: Path, fmt: str) -> list[tuple[
             raise ValueError(f"{name!r} and {str(seen[target])!r} would both write {str(target)!r}; rename one")
         seen[target] = source
         jobs.append((source, target))
+    out_dir.mkdir(parents=True, exist_ok=True)
     return jobs
 
 

@@ -179,8 +179,9 @@ class Record:
             ``True``: every data line is ``time, acceleration``. ``False``:
             every number is an acceleration sample, read row-wise (several
             per line allowed). ``None`` (default): a time column is assumed
-            when every data line holds exactly two numbers, the first column
-            strictly increases, and `dt` is not given.
+            when every data line holds exactly two numbers and the first
+            column strictly increases (an acceleration column never does);
+            its spacing must then be uniform, and a given `dt` must agree.
         name : str, optional
             Label; defaults to the file name.
 
@@ -211,12 +212,7 @@ class Record:
         header, rows, line_numbers = _parse_lines(text, label)
         widths = {len(row) for row in rows}
         if time_column is None:
-            time_column = (
-                dt is None
-                and widths == {2}
-                and len(rows) >= 2
-                and all(rows[i + 1][0] > rows[i][0] for i in range(len(rows) - 1))
-            )
+            time_column = widths == {2} and len(rows) >= 2 and _looks_like_time([row[0] for row in rows])
         if time_column:
             if widths != {2}:
                 bad = next(i for i, row in enumerate(rows) if len(row) != 2)
@@ -285,6 +281,11 @@ def _parse_lines(text: str, label: str) -> tuple[list[str], list[list[float]], l
     if not rows:
         raise ValueError(f"{label}: no numeric lines found")
     return header, rows, line_numbers
+
+
+def _looks_like_time(values: list[float]) -> bool:
+    """True when `values` strictly increase: a time column (spacing is checked later)."""
+    return bool(np.all(np.diff(np.asarray(values, dtype=np.float64)) > 0.0))
 
 
 def _uniform_step(times: NDArray[np.float64], line_numbers: list[int], label: str) -> float:

@@ -183,7 +183,17 @@ def test_from_text_missing_file():
         Record.from_text("no_such_file.txt", dt=0.01)
 
 
-def test_two_columns_with_dt_given_are_samples():
-    """With dt given and no time_column, two numbers a line are two samples (row-wise)."""
-    record = Record.from_text("0.1 0.2\n0.3 0.4\n", dt=0.01)
-    assert_array_equal(record.accel_in("g"), [0.1, 0.2, 0.3, 0.4])
+def test_two_columns_of_samples_are_read_row_wise():
+    """Two numbers a line whose first column does not increase are two samples (row-wise)."""
+    record = Record.from_text("0.1 0.2\n0.3 0.4\n-0.2 0.1\n", dt=0.01)
+    assert_array_equal(record.accel_in("g"), [0.1, 0.2, 0.3, 0.4, -0.2, 0.1])
+
+
+def test_time_column_is_recognised_even_with_dt_given():
+    """A 'time, acceleration' file passed with a matching dt is not read as samples."""
+    lines = ["time_s,accel_g"] + [f"{0.01 * i:.2f},{0.1 * np.sin(i):.6f}" for i in range(50)]
+    with pytest.warns(RecordTextWarning):
+        record = Record.from_text("\n".join(lines), dt=0.01)
+    assert record.n == 50
+    assert_allclose(record.accel_in("g"), np.round(0.1 * np.sin(np.arange(50)), 6), rtol=1e-15)
+    assert Record.from_text("\n".join(lines[1:]), dt=0.01, time_column=False).n == 100
