@@ -39,13 +39,15 @@ _DEMO_SCENARIO = (
     "moderate, nearby event, represented by Kanai-Tajimi filtered white noise with a Clough-Penzien "
     "high-pass and a Jennings-Housner-Tsai envelope, seed {seed}. Not a recorded earthquake."
 )
-#: The demo's invented structures: (label, period [s], damping ratio).
+#: The demo's invented structures: (label, period [s], damping ratio, strength reduction factor R).
+#: The R values are invented too, chosen only to show a spread of yielding (low for the brittle
+#: masonry and the tank, higher for the ductile frames); None keeps the footbridge elastic only.
 _DEMO_STRUCTURES = (
-    ("Pump house (1 storey, masonry)", 0.15, 0.05),
-    ("Control building (3 storeys, RC frame)", 0.4, 0.05),
-    ("Pipe rack (steel)", 0.8, 0.03),
-    ("Water tower (elevated tank)", 1.6, 0.02),
-    ("Footbridge (lateral mode)", 2.5, 0.01),
+    ("Pump house (1 storey, masonry)", 0.15, 0.05, 1.5),
+    ("Control building (3 storeys, RC frame)", 0.4, 0.05, 4.0),
+    ("Pipe rack (steel)", 0.8, 0.03, 5.0),
+    ("Water tower (elevated tank)", 1.6, 0.02, 2.0),
+    ("Footbridge (lateral mode)", 2.5, 0.01, None),
 )
 
 
@@ -195,8 +197,11 @@ def _add_settings(p: argparse.ArgumentParser) -> None:
     g.add_argument("--max-step-ratio", type=float, default=None, metavar="RATIO",
                    help="largest h/T before a step is sub-divided (default 0.1)")  # fmt: skip
     if p.prog.split()[-1] != "spectrum":
-        g.add_argument("--oscillator", action="append", default=None, metavar="LABEL:PERIOD[:DAMPING]",
-                       help="an oscillator for the Peaks sheet (repeatable)")  # fmt: skip
+        g.add_argument("--oscillator", action="append", default=None, metavar="LABEL:PERIOD[:DAMPING[:R]]",
+                       help="an oscillator for the Peaks sheet (repeatable); with a strength reduction factor R "
+                            "it also appears in the yielding table (damping default 0.05)")  # fmt: skip
+        g.add_argument("--hardening", type=float, default=None, metavar="ALPHA",
+                       help="post-yield stiffness ratio of the yielding oscillators, in [0, 1) (default 0: elastoplastic)")  # fmt: skip
         g.add_argument("--verification-period", type=float, default=None, metavar="SECONDS",
                        help="period of the Verification sheet's oscillator (h/T <= 0.1)")  # fmt: skip
 
@@ -224,11 +229,22 @@ def _settings(args, base=None):
         oscillators = []
         for text in args.oscillator:
             label, *numbers = text.split(":")
+            if any(not part.strip() for part in numbers[:2]):  # LABEL:PERIOD::R is not allowed: say the damping
+                numbers = []
             values = _floats(",".join(numbers), "--oscillator")
-            if not label.strip() or len(values) not in (1, 2):
-                raise _UsageError(f"--oscillator {text!r}: give LABEL:PERIOD or LABEL:PERIOD:DAMPING")
-            oscillators.append(Oscillator(label.strip(), values[0], values[1] if len(values) == 2 else 0.05))
+            if not label.strip() or len(values) not in (1, 2, 3) or len(numbers) != len(values):
+                raise _UsageError(
+                    f"--oscillator {text!r}: give LABEL:PERIOD, LABEL:PERIOD:DAMPING or LABEL:PERIOD:DAMPING:R"
+                )
+            if len(values) == 3 and not values[2] > 0.0:
+                raise _UsageError(f"--oscillator {text!r}: the reduction factor R must be > 0, got {values[2]:g}")
+            damping = values[1] if len(values) >= 2 else 0.05
+            oscillators.append(Oscillator(label.strip(), values[0], damping, values[2] if len(values) == 3 else None))
         changes["oscillators"] = tuple(oscillators)
+    if getattr(args, "hardening", None) is not None:
+        if not 0.0 <= args.hardening < 1.0:
+            raise _UsageError(f"--hardening {args.hardening:g}: give a post-yield stiffness ratio in [0, 1)")
+        changes["hardening"] = args.hardening
     if getattr(args, "verification_period", None) is not None:
         changes["verification_period"] = args.verification_period
     from dataclasses import replace
@@ -265,7 +281,7 @@ def _run_demo(args, command_line: str) -> int:
         project=(
             ("project", "groundstep demonstration (invented)"),
             ("site", "Kessel Flats pumping station (invented site, firm alluvium)"),
-            ("structure", "; ".join(label for label, _, _ in _DEMO_STRUCTURES)),
+            ("structure", "; ".join(label for label, *_ in _DEMO_STRUCTURES)),
             ("engineer", "groundstep demo"),
             ("scenario", _DEMO_SCENARIO.format(seed=args.seed)),
         ),
@@ -369,6 +385,11 @@ def _print_headline(out: Path, report, seconds: float) -> None:
         f"  largest PSA: {h['peak_psa']:.4g} {h['unit']} at T = {h['peak_psa_period']:.3g} s "
         f"(damping {h['peak_psa_damping']:g})"
     )
+    if "largest_ductility" in h:
+        print(
+            f"  largest ductility demand: {h['largest_ductility']:.3g} ({h['largest_ductility_label']}, "
+            f"R = {h['largest_ductility_reduction_factor']:g}; yielding table on the Peaks sheet)"
+        )
     print(
         f"  Verification sheet: T = {h['verification_period']:g} s, damping {h['verification_damping']:g}, "
         "every step written as formulas (open in a spreadsheet; check with 'groundstep verify')"

@@ -186,6 +186,8 @@ class WorkbookLayout:
 SUMMARY, RECORD, SPECTRA, PEAKS, VERIFICATION, AUDIT = "Summary", "Record", "Spectra", "Peaks", "Verification", "Audit"
 #: First data row of the Record table; the Verification steps start on the same row.
 RECORD_FIRST_ROW = 9
+#: Title of the Peaks sheet's table of yielding oscillators.
+YIELDING_TITLE = "Yielding oscillators (bilinear hysteresis; strength fy = F_el / R)"
 #: Relative tolerance of the Verification sheet: the same recurrence evaluated in another
 #: order of floating-point operations; 2000 steps of a damped oscillator lose far fewer digits.
 VERIFY_TOLERANCE = 1e-9
@@ -197,7 +199,13 @@ def damping_label(damping: float) -> str:
 
 
 def result_layout(
-    n_samples: int, n_periods: int, dampings: tuple[float, ...], n_oscillators: int, unit: str, length_unit: str
+    n_samples: int,
+    n_periods: int,
+    dampings: tuple[float, ...],
+    n_oscillators: int,
+    unit: str,
+    length_unit: str,
+    n_yielding: int = 0,
 ) -> WorkbookLayout:
     """The result workbook's layout for the given sizes and units.
 
@@ -210,21 +218,25 @@ def result_layout(
     unit, length_unit : str
         Acceleration unit of the record and the matching length unit, shown
         in headers.
+    n_yielding : int, default 0
+        Oscillators that carry a strength reduction factor R: rows of the
+        yielding table on the Peaks sheet (title and header only when 0;
+        the Summary's yielding block appears only when > 0).
     """
     velocity_unit = f"{length_unit}/s"
     return WorkbookLayout(
         (
-            _summary(dampings, unit, length_unit, velocity_unit),
+            _summary(dampings, unit, length_unit, velocity_unit, n_yielding),
             _record(n_samples, unit),
             _spectra(n_periods, dampings, unit, length_unit, velocity_unit),
-            _peaks(n_oscillators, unit, length_unit, velocity_unit),
+            _peaks(n_oscillators, unit, length_unit, velocity_unit, n_yielding),
             _verification(n_samples),
             _audit(),
         )
     )
 
 
-def _summary(dampings, unit, length_unit, velocity_unit) -> Sheet:
+def _summary(dampings, unit, length_unit, velocity_unit, n_yielding) -> Sheet:
     project = Fields(
         "project", "Scenario and project", 4, 1,
         (
@@ -266,7 +278,21 @@ def _summary(dampings, unit, length_unit, velocity_unit) -> Sheet:
         (Field("check_status", "Verification sheet (formulas replaying the recurrence)"),),
         formulas=(("check_status", f"={VERIFICATION}!{{verification_overall}}"),),
     )  # fmt: skip
-    return Sheet(SUMMARY, "groundstep result workbook", (project, record, key, check), note=CAUTION)
+    blocks: tuple[Fields | Table | FormulaTable, ...] = (project, record, key, check)
+    if n_yielding:
+        yielding = Fields(
+            "yielding_summary", f"Yielding oscillators ({PEAKS} sheet)", 27 + len(dampings), 1,
+            (
+                Field("largest_ductility", "Largest ductility demand μ = max|u| / u_y", "-", FIXED3),
+                Field("largest_ductility_label", "Oscillator"),
+                Field("largest_ductility_period", "Period", "s", FIXED4),
+                Field("largest_ductility_reduction_factor", "Strength reduction factor R", "-", FIXED3),
+                Field("largest_ductility_peak_displacement", "Peak displacement", length_unit, SCIENTIFIC),
+            ),
+            checked=True,
+        )  # fmt: skip
+        blocks += (yielding,)
+    return Sheet(SUMMARY, "groundstep result workbook", blocks, note=CAUTION)
 
 
 def _record(n_samples, unit) -> Sheet:
@@ -321,7 +347,7 @@ def _spectra(n_periods, dampings, unit, length_unit, velocity_unit) -> Sheet:
     return Sheet(SPECTRA, "Elastic response spectra", (table,), charts)
 
 
-def _peaks(n_oscillators, unit, length_unit, velocity_unit) -> Sheet:
+def _peaks(n_oscillators, unit, length_unit, velocity_unit, n_yielding) -> Sheet:
     table = Table(
         "peaks_table", "Peak response of the oscillators", 3, 1,
         (
@@ -336,11 +362,33 @@ def _peaks(n_oscillators, unit, length_unit, velocity_unit) -> Sheet:
             Column("time_sd", "Time of SD", "s", FIXED3),
             Column("time_sa", "Time of SA", "s", FIXED3),
             Column("substeps", "Sub-steps per step", "", INTEGER),
+            Column("reduction_factor", "Reduction factor R (blank: elastic only)", "", FIXED3, 16.0),
         ),
         n_oscillators,
         checked=True,
     )  # fmt: skip
-    return Sheet(PEAKS, "Peak response of the oscillators", (table,))
+    title = YIELDING_TITLE if n_yielding else f"{YIELDING_TITLE}: none (no oscillator has a reduction factor R)"
+    yielding = Table(
+        "yielding_table", title, n_oscillators + 6, 1,
+        (
+            Column("label", "Oscillator", "", GENERAL, 22.0),
+            Column("period", "Period", "s", FIXED4),
+            Column("damping", "Damping ratio", "", FIXED4),
+            Column("reduction_factor", "Reduction factor R = F_el / fy", "", FIXED3),
+            Column("yield_coefficient", "Yield coefficient fy / (m·g)", "", FIXED4),
+            Column("yield_displacement", "Yield displacement u_y", length_unit, SCIENTIFIC),
+            Column("peak_displacement", "Peak displacement max|u|", length_unit, SCIENTIFIC),
+            Column("ductility", "Ductility demand μ", "", FIXED3),
+            Column("residual_displacement", "Residual displacement", length_unit, SCIENTIFIC),
+            Column("yield_excursions", "Yield excursions", "", INTEGER),
+            Column("hysteretic_share", "Hysteretic energy share E_H / E_I", "", FIXED4),
+            Column("energy_balance_error", "Energy-balance error", "", SCIENTIFIC, 16.0),
+            Column("method", "Hysteresis and method", "", TEXT, 60.0),
+        ),
+        n_yielding,
+        checked=True,
+    )  # fmt: skip
+    return Sheet(PEAKS, "Peak response of the oscillators", (table, yielding))
 
 
 def _verification(n_samples) -> Sheet:
@@ -451,6 +499,8 @@ def _audit() -> Sheet:
             Field("max_step_ratio", "Largest h/T before sub-stepping (blank: off)", "", GENERAL),
             Field("dampings", "Spectrum dampings", "", TEXT),
             Field("period_grid", "Spectrum periods", "", TEXT),
+            Field("hardening", "Yielding oscillators: post-yield stiffness ratio α (0: elastoplastic)", "", GENERAL),
+            Field("yielding_method", "Yielding oscillators: hysteresis and method", "", TEXT),
         ),
     )  # fmt: skip
     return Sheet(AUDIT, "Audit trail", (fields, settings))

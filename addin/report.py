@@ -18,14 +18,25 @@ from typing import Any
 
 import numpy as np
 
-from groundstep.core import Record, __version__, elastic_spectrum, linear_response, period_grid
-from groundstep.core._methods import resolve_method
+from groundstep.core import Record, __version__, elastic_spectrum, inelastic_response, linear_response, period_grid
+from groundstep.core._methods import Method, resolve_method
+from groundstep.core.inelastic import DEFAULT_TOLERANCE
 from groundstep.core._units import ACCELERATION_UNITS, LENGTH_UNITS, MATCHING_LENGTH_UNIT
 from groundstep.core.measures import arias_intensity, normalised_arias, significant_duration
 
 from . import layout as lay
 
-__all__ = ["DEFAULT_DAMPINGS", "Oscillator", "Report", "ReportSettings", "build_report", "default_periods", "spectrum_table", "stored_record"]
+__all__ = [
+    "DEFAULT_DAMPINGS",
+    "Oscillator",
+    "Report",
+    "ReportSettings",
+    "build_report",
+    "default_periods",
+    "spectrum_table",
+    "stored_record",
+    "yielding_method",
+]
 
 #: Spectrum dampings when none are given: 2 %, 5 % and 10 % of critical are the
 #: values most often tabulated (common practice).
@@ -43,11 +54,17 @@ def default_periods() -> tuple[float, ...]:
 
 @dataclass(frozen=True, slots=True)
 class Oscillator:
-    """One of the engineer's oscillators: a label, period [s] and damping ratio."""
+    """One of the engineer's oscillators: a label, period [s], damping ratio and optional strength.
+
+    `reduction_factor` R = (peak elastic force) / fy [-], > 0: when given,
+    the oscillator also appears in the Peaks sheet's yielding table
+    (``groundstep.core.inelastic_response``); ``None`` keeps it elastic only.
+    """
 
     label: str
     period: float
     damping: float = 0.05
+    reduction_factor: float | None = None
 
 
 @dataclass(frozen=True, slots=True)
@@ -72,6 +89,9 @@ class ReportSettings:
     project : tuple of (key, text)
         Summary fields (keys ``project``, ``site``, ``structure``,
         ``engineer``, ``scenario``).
+    hardening : float
+        Post-yield stiffness ratio α of the yielding oscillators, in [0, 1);
+        0 (the default) is elastoplastic.
     """
 
     periods: tuple[float, ...] = field(default_factory=default_periods)
@@ -82,6 +102,7 @@ class ReportSettings:
     verification_period: float | None = None
     verification_damping: float = 0.05
     project: tuple[tuple[str, str], ...] = ()
+    hardening: float = 0.0
 
 
 @dataclass(frozen=True, slots=True)
@@ -122,8 +143,12 @@ def build_report(
     Raises
     ------
     ValueError
-        A Verification oscillator whose h/T exceeds 0.1, bad periods,
-        dampings or method (message from the core API).
+        A Verification oscillator whose h/T exceeds 0.1, a reduction factor
+        that is not a number > 0 (naming the oscillator), bad periods,
+        dampings, hardening or method (message from the core API).
+    ConvergenceError
+        A yielding oscillator's step did not converge (from
+        ``inelastic_response``; the message names the time).
     """
     method = resolve_method(settings.method)
     record = stored_record(record)
@@ -141,11 +166,13 @@ def build_report(
             linear_response(record, o.period, o.damping, method, max_step_ratio=settings.max_step_ratio)
             for o in settings.oscillators
         ]
+    yielding_oscillators, yielding = _yielding_responses(record, settings, method)
     check_period, check_damping, beta, gamma = _verification_oscillator(record, settings, method)
     check = linear_response(record, check_period, check_damping, (beta, gamma), max_step_ratio=_VERIFY_STEP_RATIO)
     layout = lay.result_layout(
-        record.n, periods.size, tuple(float(d) for d in spectrum.dampings), len(peaks), unit, length_unit
-    )
+        record.n, periods.size, tuple(float(d) for d in spectrum.dampings), len(peaks), unit, length_unit,
+        len(yielding),
+    )  # fmt: skip
 
     table = spectrum_table(record, spectrum)
     spectra: dict[str, Any] = {"period": table["periods"]}
@@ -199,7 +226,9 @@ def build_report(
             "time_sd": [r.time_of_peak_displacement for r in peaks],
             "time_sa": [r.time_of_peak_total_acceleration for r in peaks],
             "substeps": [r.substeps for r in peaks],
+            "reduction_factor": [_reduction_factor(o) for o in settings.oscillators],
         },
+        "yielding_table": _yielding_table(yielding_oscillators, yielding, to_length, settings.hardening, method),
         "verification_inputs": {
             "verification_period": check_period,
             "verification_damping": check_damping,
@@ -234,8 +263,26 @@ def build_report(
             "max_step_ratio": settings.max_step_ratio,
             "dampings": ", ".join(repr(float(d)) for d in spectrum.dampings),
             "period_grid": f"{periods.size} periods, {periods.min():g} s to {periods.max():g} s (listed on {lay.SPECTRA})",
+            "hardening": float(settings.hardening),
+            "yielding_method": _yielding_text(settings.hardening, method)
+            + f"; tolerance: residual <= {DEFAULT_TOLERANCE:g}·(fy/m + PGA); sub-steps as for the elastic table",
         },
     }
+    headline_ductility: dict[str, Any] = {}
+    if yielding:
+        worst = int(np.argmax([r.ductility for r in yielding]))
+        content["yielding_summary"] = {
+            "largest_ductility": yielding[worst].ductility,
+            "largest_ductility_label": yielding_oscillators[worst].label,
+            "largest_ductility_period": float(yielding_oscillators[worst].period),
+            "largest_ductility_reduction_factor": float(yielding_oscillators[worst].reduction_factor),
+            "largest_ductility_peak_displacement": yielding[worst].peak_displacement * to_length,
+        }
+        headline_ductility = {
+            "largest_ductility": yielding[worst].ductility,
+            "largest_ductility_label": yielding_oscillators[worst].label,
+            "largest_ductility_reduction_factor": float(yielding_oscillators[worst].reduction_factor),
+        }
     best = int(np.argmax(spectrum.psa.max(axis=0)))
     row = int(np.argmax(spectrum.psa[:, best]))
     headline = {
@@ -247,6 +294,7 @@ def build_report(
         "verification_period": check_period,
         "verification_damping": check_damping,
         "significant_duration": content["record_summary"]["significant_duration"],
+        **headline_ductility,
     }
     return Report(layout, content, headline)
 
@@ -309,6 +357,81 @@ def _verification_oscillator(record: Record, settings: ReportSettings, method) -
     if not 0.0 <= damping < 1.0 or math.isnan(damping):
         raise ValueError(f"verification damping must be a ratio in [0, 1), got {damping!r}")
     return period, damping, float(beta), float(gamma)
+
+
+def yielding_method(method: Method) -> Method:
+    """The integration method of the yielding oscillators for workbook method `method`.
+
+    The workbook's own method when it is an implicit Newmark pair (β > 0),
+    which ``inelastic_response`` accepts; else (the exact method, explicit
+    β = 0) average acceleration.
+    """
+    if method.is_newmark and method.beta > 0.0:
+        return method
+    return resolve_method("average")
+
+
+def _reduction_factor(oscillator: Oscillator) -> float | None:
+    value = oscillator.reduction_factor
+    if value is None:
+        return None
+    if isinstance(value, bool) or not isinstance(value, (int, float, np.floating, np.integer)):
+        raise TypeError(f"oscillator {oscillator.label!r}: reduction factor R must be a number, got {value!r}")
+    if not (math.isfinite(value) and value > 0.0):
+        raise ValueError(f"oscillator {oscillator.label!r}: reduction factor R must be a number > 0, got {value!r}")
+    return float(value)
+
+
+def _yielding_responses(record: Record, settings: ReportSettings, method: Method):
+    """The oscillators that carry R, and their ``inelastic_response`` results."""
+    hardening = settings.hardening
+    if isinstance(hardening, bool) or not isinstance(hardening, (int, float)) or not 0.0 <= hardening < 1.0:
+        raise ValueError(f"hardening (post-yield stiffness ratio α) must be a number in [0, 1), got {hardening!r}")
+    used = yielding_method(method)
+    chosen = [o for o in settings.oscillators if _reduction_factor(o) is not None]
+    results = []
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # sub-steps are shown per oscillator; a result is always converged
+        for o in chosen:
+            results.append(
+                inelastic_response(
+                    record, o.period, o.damping, reduction_factor=float(o.reduction_factor),
+                    hardening=settings.hardening, method=(used.beta, used.gamma),
+                    max_step_ratio=settings.max_step_ratio,
+                )
+            )  # fmt: skip
+    return chosen, results
+
+
+def _yielding_text(hardening: float, method: Method) -> str:
+    """One line naming the hysteresis and the integration method of the yielding table."""
+    used = yielding_method(method)
+    spring = "bilinear, elastoplastic (hardening α = 0)" if hardening == 0.0 else (
+        f"bilinear, kinematic hardening α = {hardening:g}"
+    )
+    text = f"{spring}; {used.describe()}, Newton-Raphson iterations on the residual force each step"
+    if not (method.is_newmark and method.beta > 0.0):
+        text += f" (the workbook's {method.name} method has no yielding form)"
+    return text
+
+
+def _yielding_table(oscillators, results, to_length: float, hardening: float, method: Method) -> dict[str, list[Any]]:
+    text = _yielding_text(hardening, method)
+    return {
+        "label": [o.label for o in oscillators],
+        "period": [float(o.period) for o in oscillators],
+        "damping": [float(o.damping) for o in oscillators],
+        "reduction_factor": [float(o.reduction_factor) for o in oscillators],
+        "yield_coefficient": [r.yield_coefficient for r in results],
+        "yield_displacement": [r.yield_displacement * to_length for r in results],
+        "peak_displacement": [r.peak_displacement * to_length for r in results],
+        "ductility": [r.ductility for r in results],
+        "residual_displacement": [r.residual_displacement * to_length for r in results],
+        "yield_excursions": [r.yield_excursions for r in results],
+        "hysteretic_share": [r.hysteretic_energy / r.input_energy if r.input_energy > 0.0 else 0.0 for r in results],
+        "energy_balance_error": [r.energy_balance_error for r in results],
+        "method": [text] * len(results),
+    }
 
 
 def _library_versions() -> str:

@@ -37,7 +37,9 @@ INPUT_NAMES: dict[str, tuple[str, ...]] = {
     "method": ("input_method", "gs_in_method"),
     "oscillator_periods": ("input_peak_periods", "gs_in_oscillator_periods"),
     "oscillator_dampings": ("input_peak_dampings", "gs_in_oscillator_dampings"),
+    "oscillator_reduction_factors": ("input_peak_reduction_factors", "gs_in_oscillator_reduction_factors"),
     "oscillator_labels": ("gs_in_oscillator_labels",),
+    "hardening": ("gs_in_hardening",),
     "project": ("input_project", "gs_in_project"),
     "site": ("input_site", "gs_in_site"),
     "structure": ("gs_in_structure",),
@@ -122,7 +124,16 @@ def settings_from_cells(
         if len(ratios) != len(found):
             raise InputError(f"{len(found)} oscillator periods but {len(ratios)} dampings")
         names = _labels(labels, len(found))
-        oscillators = tuple(Oscillator(n, float(p), float(d)) for n, p, d in zip(names, found, ratios))
+        factors = _reduction_factors(get("oscillator_reduction_factors"), osc_periods, len(found))
+        oscillators = tuple(
+            Oscillator(n, float(p), float(d), r) for n, p, d, r in zip(names, found, ratios, factors)
+        )
+    hardening = base.hardening
+    hardening_cell = get("hardening")
+    if hardening_cell is not None:
+        hardening = _cells.nonnegative(hardening_cell, "the hardening cell", 0.0)
+        if not hardening < 1.0:
+            raise InputError(f"the hardening cell must be a post-yield stiffness ratio in [0, 1), got {hardening:g}")
     project = []
     for key in PROJECT_KEYS:
         cell = get(key)
@@ -142,6 +153,7 @@ def settings_from_cells(
         verification_period=base.verification_period,
         verification_damping=base.verification_damping,
         project=tuple(project) or base.project,
+        hardening=hardening,
     )
     return record, settings
 
@@ -217,6 +229,42 @@ def read_input_workbook(
         source = f"{file.name} {sheet_name}!{reference}"
     rec, settings = settings_from_cells(get, record_values=record_values, dt=dt, unit=unit, source=source, base=base)
     return rec, settings, source
+
+
+def _reduction_factors(factors: Any, periods: Any, count: int) -> list[float | None]:
+    """R of each oscillator, cell for cell beside the period cells; a blank cell means elastic only.
+
+    The reduction-factor range lines up with the period range (same rows in
+    the template): the k-th period cell's oscillator takes the k-th cell of
+    this range. Cells beside rows without a period are not read.
+    """
+    if factors is None:
+        return [None] * count
+    what = "the oscillator reduction factors"
+    start = _first_number(_cells._line(periods, "the oscillator periods").cells)
+    cells = _cells._line(factors, what).cells
+    found: list[float | None] = []
+    for index in range(start, start + count):
+        cell = cells[index] if index < len(cells) else None
+        value = _cells.number(cell, f"row {index + 1} of {what}", None)
+        if value is not None and not value > 0.0:
+            raise InputError(
+                f"row {index + 1} of {what} holds {value:g}; R = peak elastic force / yield force must be > 0 "
+                "(leave the cell blank for an elastic-only oscillator)"
+            )
+        found.append(value)
+    return found
+
+
+def _first_number(cells: list[Any]) -> int:
+    """Index of the first cell holding a number (blank cells and headings above it are skipped)."""
+    for index, cell in enumerate(cells):
+        try:
+            if _cells.number(cell, "", None) is not None:
+                return index
+        except _cells.CellError:
+            continue
+    return len(cells)
 
 
 def _labels(labels: Any, count: int) -> list[str]:

@@ -169,20 +169,42 @@ def _read_inputs(names: _Names) -> tuple[Record, ReportSettings, dict[str, str]]
     labels = names.column("peaks_table_label", required=False)
     periods = names.numbers("peaks_table_period", required=False)
     oscillator_dampings = names.numbers("peaks_table_damping", required=False)
+    factors = _optional_numbers(names, "peaks_table_reduction_factor", len(periods))
+    hardening = names.value("hardening", required=False)
+    if hardening in (None, ""):
+        hardening = 0.0
+    elif isinstance(hardening, bool) or not isinstance(hardening, (int, float)):
+        raise NotAResultWorkbook(f"cell {lay.NAME_PREFIX}hardening should hold a number, holds {hardening!r}")
     settings = ReportSettings(
         periods=tuple(names.numbers("spectra_table_period")),
         dampings=dampings,
         method=method,
         max_step_ratio=None if ratio in (None, "") else float(ratio),
         oscillators=tuple(
-            Oscillator("" if label is None else str(label), p, d) for label, p, d in zip(labels, periods, oscillator_dampings)
+            Oscillator("" if label is None else str(label), p, d, r)
+            for label, p, d, r in zip(labels, periods, oscillator_dampings, factors)
         ),
         verification_period=names.number("verification_period"),
         verification_damping=names.number("verification_damping"),
         project=tuple((key, names.value(key) or "") for key in PROJECT_KEYS),
+        hardening=float(hardening),
     )
     audit = {key: str(names.value(key, required=False) or "") for key in ("record_sha256", "command", "record_source")}
     return record, settings, audit
+
+
+def _optional_numbers(names: _Names, key: str, count: int) -> list[float | None]:
+    """A column whose blank cells mean "not given" (None); `count` Nones when the workbook lacks it."""
+    values = names.column(key, required=False) or [None] * count
+    found: list[float | None] = []
+    for index, value in enumerate(values, start=1):
+        if value in (None, ""):
+            found.append(None)
+        elif isinstance(value, bool) or not isinstance(value, (int, float)):
+            raise NotAResultWorkbook(f"range {lay.NAME_PREFIX}{key} row {index} should hold a number or be blank, holds {value!r}")
+        else:
+            found.append(float(value))
+    return found
 
 
 def _check_digest(record: Record, stored: str) -> BlockCheck:

@@ -92,7 +92,7 @@ def test_verify_exit_codes(demo, tmp_path, capsys):
     book.save(copy)
     assert main(["verify", str(copy)]) == 1
     report = capsys.readouterr().out
-    assert "MISMATCH  Peaks / Peak response of the oscillators: 1 of 55 cells differ; first: F6 holds 123, recomputed" in report
+    assert "MISMATCH  Peaks / Peak response of the oscillators: 1 of 60 cells differ; first: F6 holds 123, recomputed" in report
     other = tmp_path / "other.xlsx"
     openpyxl.Workbook().save(other)
     assert main(["verify", str(other)]) == 2
