@@ -49,6 +49,13 @@ def test_demo_runs_end_to_end(demo):
     assert lay.CAUTION in result.stdout
     book = openpyxl.load_workbook(out)
     assert "Kessel Flats" in str(book["Summary"]["B6"].value)  # the invented site
+    # the invented structures carry invented reduction factors; the footbridge stays elastic only
+    assert [row[0].value for row in book["Peaks"]["L5:L9"]] == [1.5, 4, 5, 2, None]
+    assert [row[0].value for row in book["Peaks"]["A13:A16"]] == [
+        "Pump house (1 storey, masonry)", "Control building (3 storeys, RC frame)", "Pipe rack (steel)",
+        "Water tower (elevated tank)",
+    ]  # fmt: skip
+    assert "largest ductility demand" in result.stdout
 
 
 def test_demo_refuses_to_overwrite_without_force(demo, capsys):
@@ -93,6 +100,15 @@ def test_verify_exit_codes(demo, tmp_path, capsys):
     assert main(["verify", str(copy)]) == 1
     report = capsys.readouterr().out
     assert "MISMATCH  Peaks / Peak response of the oscillators: 1 of 60 cells differ; first: F6 holds 123, recomputed" in report
+    yielding = tmp_path / "yielding.xlsx"
+    shutil.copy(out, yielding)
+    book = openpyxl.load_workbook(yielding)
+    book["Peaks"]["H14"].value = 1.0  # ductility demand of the second yielding oscillator
+    book.save(yielding)
+    assert main(["verify", str(yielding)]) == 1
+    report = capsys.readouterr().out
+    assert "MISMATCH  Peaks / Yielding oscillators" in report and "first: H14 holds 1, recomputed" in report
+    assert "1 of 12 checks do not match: Peaks / Yielding oscillators" in report
     other = tmp_path / "other.xlsx"
     openpyxl.Workbook().save(other)
     assert main(["verify", str(other)]) == 2
@@ -121,13 +137,16 @@ def test_fill_with_record_option_leaves_input_byte_identical(tmp_path, capsys):
     stamp = os.stat(source).st_mtime_ns
     out = tmp_path / "out.xlsx"
     code = main(["fill", str(source), "--out", str(out), "--record", reference, "--dt", "0.01", "--unit", "g",
-                 "--dampings", "0.05", "--periods", "0.1,4,12", "--oscillator", "tank:0.9:0.02"])  # fmt: skip
+                 "--dampings", "0.05", "--periods", "0.1,4,12", "--oscillator", "tank:0.9:0.02",
+                 "--oscillator", "frame:0.5:0.05:4"])  # fmt: skip
     assert code == 0, capsys.readouterr().err
     assert hashlib.sha256(source.read_bytes()).hexdigest() == digest
     assert os.stat(source).st_mtime_ns == stamp
     assert main(["verify", str(out)]) == 0
     book = openpyxl.load_workbook(out)
     assert book["Peaks"]["A5"].value == "tank"
+    # 2 oscillators: the yielding table's title on row 8, its one row (frame, R = 4) on row 10
+    assert [c.value for c in book["Peaks"][10][:4]] == ["frame", 0.5, 0.05, 4]
     assert "input.xlsx 'Ground motion'!B1" in book["Audit"]["B12"].value or "Ground motion" in str(
         [c.value for c in book["Audit"]["B"]]
     )
@@ -233,6 +252,22 @@ def test_templates_command_writes_templates(tmp_path, capsys):
     assert any(p.suffix in (".xlsx", ".xlsm") for p in (tmp_path / "t").iterdir())
 
 
+@pytest.mark.parametrize(
+    ("value", "message"),
+    [
+        ("tank:1.0:0.02:0", "--oscillator 'tank:1.0:0.02:0': the reduction factor R must be > 0, got 0"),
+        ("tank:1.0::3", "--oscillator 'tank:1.0::3': give LABEL:PERIOD, LABEL:PERIOD:DAMPING or LABEL:PERIOD:DAMPING:R"),
+        ("tank:1:0.02:3:9", "give LABEL:PERIOD, LABEL:PERIOD:DAMPING or LABEL:PERIOD:DAMPING:R"),
+    ],
+)
+def test_bad_oscillator_option_is_one_line(value, message, tmp_path, capsys):
+    """A bad --oscillator (R <= 0, a missing damping before R, too many parts) exits 2 naming the option."""
+    assert main(["demo", str(tmp_path / "d.xlsx"), "--oscillator", value]) == 2
+    err = capsys.readouterr().err
+    assert message in err and err.strip().count("\n") == 0
+    assert not (tmp_path / "d.xlsx").exists()
+
+
 def test_bad_option_values_are_one_line(capsys, tmp_path):
     """Malformed --periods and --workers give exit 2 with the option named."""
     path = tmp_path / "r.txt"
@@ -257,6 +292,10 @@ def test_fill_reads_the_calculation_package_template(tmp_path, capsys):
     cell("input_unit").value = "g"
     cell("input_record_name").value = "paste test"
     cell("input_project").value = "Pier 4 retrofit (invented)"
+    r_cells = book["Peaks"]["I7:I18"]  # input_peak_reduction_factors, beside the template's 12 periods
+    assert templates.INPUT_NAMES["input_peak_reduction_factors"] == "Peaks!$I$7:$I$18"
+    r_cells[1][0].value = None  # the second oscillator (0.2 s) stays elastic only
+    r_cells[2][0].value = 2.5
     first = cell("input_record")
     for i, value in enumerate(record.accel_in("g").tolist(), start=1):
         book[first.parent.title].cell(row=first.row + i, column=first.column, value=value)
@@ -272,3 +311,32 @@ def test_fill_reads_the_calculation_package_template(tmp_path, capsys):
     assert result["Summary"]["B12"].value == "paste test"
     periods = [row[0].value for row in result["Spectra"]["A5:A44"]]  # 41 template periods less T = 0
     assert periods[0] == 0.02 and len([p for p in periods if p]) == 40
+    # R read from the filled template: 12 oscillators, 11 with R (the template's 4 except the two edits)
+    names = result.defined_names
+    sheet, ref = names["gs_yielding_table_reduction_factor"].attr_text.split("!")
+    factors = [row[0].value for row in result[sheet.strip("'")][ref.replace("$", "")]]
+    assert factors == [4, 2.5] + [4] * 9
+    sheet, ref = names["gs_yielding_table_period"].attr_text.split("!")
+    assert [row[0].value for row in result[sheet.strip("'")][ref.replace("$", "")]][:2] == [0.1, 0.3]
+
+
+def test_fill_reports_a_bad_reduction_factor_cell(tmp_path, capsys):
+    """A text or negative R cell (gs_in_oscillator_reduction_factors) exits 2 naming its row."""
+    from openpyxl.workbook.defined_name import DefinedName
+
+    record = synthetic_record(1.0, 0.01, pga=0.2, seed=3)
+    for bad, message in (("four", "row 2 of the oscillator reduction factors holds the text 'four', not a number"),
+                         (-2.0, "row 2 of the oscillator reduction factors holds -2; R = peak elastic force / yield "
+                                "force must be > 0 (leave the cell blank for an elastic-only oscillator)")):  # fmt: skip
+        source = tmp_path / "named.xlsx"
+        _input_book(source, record)
+        book = openpyxl.load_workbook(source)
+        ws = book["Ground motion"]
+        ws["D1"], ws["E1"], ws["D2"], ws["E2"], ws["D3"] = "T [s]", "R", 0.5, bad, 1.0
+        for name, ref in (("gs_in_oscillator_periods", "$D$1:$D$3"), ("gs_in_oscillator_reduction_factors", "$E$1:$E$3")):
+            book.defined_names[name] = DefinedName(name, attr_text=f"'Ground motion'!{ref}")
+        book.save(source)
+        code = main(["fill", str(source), "--out", str(tmp_path / "o.xlsx"), "--record", "'Ground motion'!B1:B200",
+                     "--dt", "0.01", "--periods", "0.2,2,5"])  # fmt: skip
+        assert code == 2
+        assert capsys.readouterr().err.strip() == f"groundstep fill: error: {message}"

@@ -88,7 +88,7 @@ def workbooks(tmp_path_factory):
     source.save(folder / "input.xlsx")
     assert main(["fill", str(folder / "input.xlsx"), "--out", str(folder / "fill.xlsx"), "--record",
                  f"Data!B1:B{record.n + 1}", "--dt", "0.02", "--unit", "m/s2", "--method", "linear",
-                 "--oscillator", "mast:0.7:0.03"]) == 0  # fmt: skip
+                 "--oscillator", "mast:0.7:0.03:3"]) == 0  # fmt: skip
     made["fill"] = folder / "fill.xlsx"
 
     text = folder / "rec.txt"
@@ -157,3 +157,23 @@ def test_reviewer_changes_reach_the_pass_cell(workbooks, tmp_path):
     book.save(copy)
     recalculated = openpyxl.load_workbook(recalculate(copy, tmp_path / "calc"), data_only=True)
     assert _name(recalculated, "verification_overall").value == "FAIL"
+
+
+@pytest.mark.parametrize("key", ["demo", "fill"])
+def test_yielding_block_survives_recalculation(workbooks, key):
+    """After LibreOffice loads, recalculates and saves, the yielding table and its Summary line keep their values."""
+    written, calculated = workbooks[key]
+    before = openpyxl.load_workbook(written)
+    after = openpyxl.load_workbook(calculated, data_only=True)
+    columns = ("label", "reduction_factor", "yield_coefficient", "peak_displacement", "ductility",
+               "residual_displacement", "yield_excursions", "hysteretic_share", "energy_balance_error", "method")  # fmt: skip
+    for column in columns:
+        old = [row[0].value for row in _name(before, f"yielding_table_{column}")]
+        new = [row[0].value for row in _name(after, f"yielding_table_{column}")]
+        assert old and len(new) == len(old), column
+        if isinstance(old[0], str):
+            assert new == old, column
+        else:
+            # LibreOffice keeps 15 significant digits of a stored number: 1e-14 relative
+            np.testing.assert_allclose(new, old, rtol=1e-14, err_msg=column)
+    assert _name(after, "largest_ductility").value == pytest.approx(_name(before, "largest_ductility").value, rel=1e-14)

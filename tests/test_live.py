@@ -144,7 +144,9 @@ class FakeBook:
 def report():
     record = synthetic_record(3.0, 0.01, pga=0.2, seed=9, name="live test")
     settings = ReportSettings(
-        periods=(0.1, 0.3, 1.0, 3.0), dampings=(0.05, 0.1), oscillators=(Oscillator("frame", 0.5, 0.05),)
+        periods=(0.1, 0.3, 1.0, 3.0),
+        dampings=(0.05, 0.1),
+        oscillators=(Oscillator("frame", 0.5, 0.05, 3.0), Oscillator("mast", 1.2, 0.02)),
     )
     return build_report(record, settings, command="test", created="2026-01-01T00:00:00+00:00")
 
@@ -183,6 +185,10 @@ def test_live_writer_writes_what_the_file_writer_writes(report, tmp_path):
         for column, width in sheet.widths.items():
             assert ws.column_dimensions[column_letter(column)].width == width
     assert compared > 1000
+    # the yielding table (2 oscillators: data from row 10) and the Summary yielding block are mirrored
+    peaks = book.sheets["Peaks"].cells
+    assert peaks[(10, 1)] == "frame" and peaks[(10, 8)] == report.content["yielding_table"]["ductility"][0]
+    assert any(n.name == "gs_largest_ductility" for n in book.names)
     assert {n.name: n.refers_to for n in book.names} == {
         name: "=" + item.attr_text for name, item in stored.defined_names.items()
     }
@@ -223,3 +229,22 @@ def test_fill_open_book_reads_named_inputs():
     assert_allclose(result.content["record_table"]["accel"], record.accel_in("g"), rtol=1e-15, atol=0.0)
     assert "Verification" in [s.name for s in book.sheets]
     assert book.sheets[0].name == "Input"  # the input sheet stays first and untouched
+
+
+def test_fill_open_book_reads_reduction_factors():
+    """The macro's reader takes R per oscillator (blank: elastic only) and fills the yielding table."""
+    record = synthetic_record(2.0, 0.01, pga=0.3, seed=4)
+    book = FakeBook()
+    book.sheets.add("Input")
+    column = [[v] for v in record.accel_in("g").tolist()]
+    book.names.append(FakeName(book.names, "gs_in_record", "=Input!$B$1:$B$201", column))
+    book.names.append(FakeName(book.names, "gs_in_dt", "=Input!$E$2", [[0.01]]))
+    book.names.append(FakeName(book.names, "gs_in_oscillator_periods", "=Input!$G$1:$G$4", [["T [s]"], [0.3], [0.9], [2.0]]))
+    factors = [["R"], [4.0], [None], [1.5]]  # a header, then R beside each period; the 0.9 s oscillator stays elastic
+    book.names.append(FakeName(book.names, "gs_in_oscillator_reduction_factors", "=Input!$H$1:$H$4", factors))
+    result = live.fill_open_book(book, ReportSettings(periods=(0.2, 1.0), dampings=(0.05,)))
+    table = result.content["yielding_table"]
+    assert table["period"] == [0.3, 2.0] and table["reduction_factor"] == [4.0, 1.5]
+    assert result.content["peaks_table"]["reduction_factor"] == [4.0, None, 1.5]
+    yielding_title = book.sheets["Peaks"].cells[(9, 1)]  # 3 oscillators: the yielding table starts on row 9
+    assert yielding_title.startswith("Yielding oscillators")

@@ -18,7 +18,7 @@ from groundstep.addin import layout as lay
 from groundstep.addin.report import Oscillator, ReportSettings, build_report, stored_record
 from groundstep.addin.verify import NotAResultWorkbook, verify_workbook
 from groundstep.addin.workbook import write_report
-from groundstep.core import Record, elastic_spectrum, linear_response
+from groundstep.core import STANDARD_GRAVITY, Record, elastic_spectrum, inelastic_response, linear_response
 from groundstep.core.synthetic import synthetic_record
 
 SHEETS = ["Summary", "Record", "Spectra", "Peaks", "Verification", "Audit"]
@@ -28,12 +28,16 @@ DAMPINGS = (0.02, 0.05)
 
 @pytest.fixture(scope="module")
 def made(tmp_path_factory):
-    """A small result workbook: 3 s record in cm/s², 7 periods, 2 dampings, 2 oscillators."""
+    """A small result workbook: 3 s record in cm/s², 7 periods, 2 dampings, 3 oscillators (2 with R)."""
     record = synthetic_record(3.0, 0.01, pga=250.0, unit="cm/s2", seed=21, name="workbook test")
     settings = ReportSettings(
         periods=PERIODS,
         dampings=DAMPINGS,
-        oscillators=(Oscillator("short", 0.3, 0.05), Oscillator("long", 1.5, 0.02)),
+        oscillators=(
+            Oscillator("short", 0.3, 0.05, 3.0),
+            Oscillator("long", 1.5, 0.02),
+            Oscillator("mid", 0.8, 0.05, 2.0),
+        ),
         project=(("project", "=HYPERLINK(\"x\")"), ("site", "invented site")),
     )
     report = build_report(record, settings, command="groundstep test")
@@ -160,7 +164,14 @@ def test_verify_passes_on_a_fresh_workbook(made):
 
 @pytest.mark.parametrize(
     ("sheet", "cell", "block"),
-    [("Spectra", "D7", "spectra_table"), ("Peaks", "D5", "peaks_table"), ("Summary", "B15", "record_summary")],
+    [
+        ("Spectra", "D7", "spectra_table"),
+        ("Peaks", "D5", "peaks_table"),
+        ("Summary", "B15", "record_summary"),
+        ("Peaks", "H12", "yielding_table"),  # ductility of the second yielding oscillator ("mid")
+        ("Peaks", "F11", "yielding_table"),  # yield displacement of the first ("short")
+        ("Summary", "B30", "yielding_summary"),  # largest ductility demand
+    ],
 )
 def test_verify_names_the_block_with_a_changed_cell(made, tmp_path, sheet, cell, block):
     """Changing one result cell (in a copy, with openpyxl) makes verify fail that block only."""
@@ -216,3 +227,172 @@ def test_stored_record_survives_the_file(tmp_path):
     exact = Record([0.125, -0.5, 0.25], 0.01, "g")  # short binary fractions need no rounding
     assert stored_record(exact) is exact
     assert not math.isnan(kept.pga)
+
+
+# --- yielding oscillators ---------------------------------------------------------------------
+# The yielding engine itself is checked in tests/test_inelastic.py against the Biggs (1964)
+# step-load closed form, a scipy event-driven integration, energy balance, the bilinear envelope
+# and second-order convergence; here the workbook must show exactly what that engine returns.
+
+
+def _named(book, key):
+    sheet, ref = book.defined_names[lay.NAME_PREFIX + key].attr_text.split("!")
+    cells = book[sheet.strip("'")][ref.replace("$", "")]
+    return [row[0].value for row in cells] if isinstance(cells, tuple) else cells.value
+
+
+def _core_yielding(record, settings):
+    """inelastic_response for each oscillator that has R, as the workbook should show it."""
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        return [
+            (o, inelastic_response(stored_record(record), o.period, o.damping, reduction_factor=o.reduction_factor))
+            for o in settings.oscillators
+            if o.reduction_factor is not None
+        ]
+
+
+def test_yielding_table_equals_the_core_api(made):
+    """Every yielding cell equals groundstep.core.inelastic_response (lengths in cm, the record's unit)."""
+    record, settings, _, path = made
+    book = openpyxl.load_workbook(path)
+    expected = _core_yielding(record, settings)
+    assert _named(book, "yielding_table_label") == ["short", "mid"]  # "long" has no R
+    columns = {
+        "period": lambda o, r: o.period,
+        "damping": lambda o, r: o.damping,
+        "reduction_factor": lambda o, r: o.reduction_factor,
+        "yield_coefficient": lambda o, r: r.yield_coefficient,
+        "yield_displacement": lambda o, r: r.yield_displacement * 100.0,
+        "peak_displacement": lambda o, r: r.peak_displacement * 100.0,
+        "ductility": lambda o, r: r.ductility,
+        "residual_displacement": lambda o, r: r.residual_displacement * 100.0,
+        "hysteretic_share": lambda o, r: r.hysteretic_energy / r.input_energy,
+        "energy_balance_error": lambda o, r: r.energy_balance_error,
+    }
+    for key, value in columns.items():
+        # the file keeps 16 significant digits (openpyxl): 1e-15 relative
+        assert_allclose(_named(book, f"yielding_table_{key}"), [value(o, r) for o, r in expected], rtol=1e-15, err_msg=key)
+    assert _named(book, "yielding_table_yield_excursions") == [r.yield_excursions for _, r in expected]
+    assert all(r.ductility > 1.0 for _, r in expected)  # both really yield for this record
+    for text in _named(book, "yielding_table_method"):
+        assert "elastoplastic (hardening α = 0)" in text and "average acceleration" in text and "Newton" in text
+
+
+def test_yielding_table_agrees_with_the_elastic_table(made):
+    """Identities across the Peaks sheet: Cy·g·R = PSA of the same oscillator; max|u| = μ·u_y; u_y = Cy·g/ω²."""
+    _, _, _, path = made
+    book = openpyxl.load_workbook(path)
+    psa = dict(zip(_named(book, "peaks_table_label"), _named(book, "peaks_table_psa")))  # cm/s²
+    labels = _named(book, "yielding_table_label")
+    cy = np.array(_named(book, "yielding_table_yield_coefficient"))
+    factor = np.array(_named(book, "yielding_table_reduction_factor"))
+    period = np.array(_named(book, "yielding_table_period"))
+    # R is defined on the peak elastic force ω²·SD = PSA of the same oscillator (same method, sub-steps)
+    assert_allclose(cy * STANDARD_GRAVITY * 100.0 * factor, [psa[label] for label in labels], rtol=1e-13)
+    u_y = np.array(_named(book, "yielding_table_yield_displacement"))
+    assert_allclose(u_y, cy * STANDARD_GRAVITY * 100.0 / (2 * np.pi / period) ** 2, rtol=1e-13)  # u_y = fy/k
+    mu = np.array(_named(book, "yielding_table_ductility"))
+    assert_allclose(_named(book, "yielding_table_peak_displacement"), mu * u_y, rtol=1e-13)
+    # the elastic table shows R beside each oscillator, blank for the elastic-only one
+    assert _named(book, "peaks_table_reduction_factor") == [3, None, 2]
+
+
+def test_summary_shows_the_largest_ductility(made):
+    """The Summary's yielding block names the oscillator with the largest ductility demand."""
+    record, settings, _, path = made
+    book = openpyxl.load_workbook(path)
+    expected = _core_yielding(record, settings)
+    worst_oscillator, worst = max(expected, key=lambda item: item[1].ductility)
+    assert_allclose(_named(book, "largest_ductility"), worst.ductility, rtol=1e-15)
+    assert _named(book, "largest_ductility_label") == worst_oscillator.label
+    assert _named(book, "largest_ductility_reduction_factor") == worst_oscillator.reduction_factor
+    assert_allclose(_named(book, "largest_ductility_peak_displacement"), worst.peak_displacement * 100.0, rtol=1e-15)
+
+
+def test_audit_names_the_yielding_settings(made):
+    """The Audit sheet gives the hardening ratio and the hysteresis and method of the yielding block."""
+    _, _, _, path = made
+    book = openpyxl.load_workbook(path)
+    assert _named(book, "hardening") == 0
+    text = _named(book, "yielding_method")
+    assert "bilinear, elastoplastic" in text and "beta = 0.25, gamma = 0.5" in text and "Newton-Raphson" in text
+
+
+def test_verify_reads_r_back_from_the_peaks_table(made, tmp_path):
+    """R is read back from the elastic table: changing it there makes the recomputed yielding table differ."""
+    _, _, _, path = made
+    copy = tmp_path / "edited.xlsx"
+    shutil.copy(path, copy)
+    book = openpyxl.load_workbook(copy)
+    book["Peaks"]["L5"].value = 2.5  # R of "short" in the elastic table
+    book.save(copy)
+    bad = {c.block for c in verify_workbook(copy) if not c.ok}
+    assert "yielding_table" in bad and "peaks_table" not in bad
+
+
+def test_no_reduction_factor_gives_an_empty_yielding_table(tmp_path):
+    """Without R the yielding table has a title and header only, the Summary no yielding block; verify passes."""
+    record = synthetic_record(2.0, 0.01, pga=0.2, seed=5)
+    settings = ReportSettings(periods=(0.2, 1.0), dampings=(0.05,), oscillators=(Oscillator("frame", 0.5),))
+    report = build_report(record, settings)
+    assert "yielding_summary" not in report.content and "largest_ductility" not in report.headline
+    path = write_report(report, tmp_path / "elastic.xlsx")
+    book = openpyxl.load_workbook(path)
+    assert not [name for name in book.defined_names if name.startswith("gs_yielding_table")]
+    assert "none (no oscillator has a reduction factor R)" in book["Peaks"]["A7"].value
+    assert book["Peaks"]["A8"].value == "Oscillator" and book["Peaks"]["A9"].value is None
+    assert all(c.ok for c in verify_workbook(path))
+
+
+@pytest.mark.parametrize(
+    ("method", "used", "note"),
+    [("linear", "linear", False), ("exact", "average", True), ((0.3, 0.6), (0.3, 0.6), False)],
+)
+def test_yielding_method_follows_the_workbook_method(method, used, note):
+    """Yielding oscillators use the workbook's implicit Newmark method; 'exact' falls back to average acceleration."""
+    record = synthetic_record(2.0, 0.01, pga=0.3, seed=6)
+    settings = ReportSettings(periods=(0.2, 1.0), dampings=(0.05,), method=method,
+                              oscillators=(Oscillator("frame", 0.5, 0.05, 3.0),))  # fmt: skip
+    report = build_report(record, settings)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        direct = inelastic_response(stored_record(record), 0.5, 0.05, reduction_factor=3.0, method=used)
+    assert report.content["yielding_table"]["ductility"] == [direct.ductility]
+    text = report.content["yielding_table"]["method"][0]
+    assert ("has no yielding form" in text) == note
+
+
+def test_hardening_setting_reaches_the_core_and_survives_verify(tmp_path):
+    """A hardening ratio in the settings is used, written on the Audit sheet and read back by verify."""
+    record = synthetic_record(2.0, 0.01, pga=0.3, seed=6)
+    settings = ReportSettings(periods=(0.2, 1.0), dampings=(0.05,), hardening=0.05,
+                              oscillators=(Oscillator("frame", 0.5, 0.05, 4.0),))  # fmt: skip
+    report = build_report(record, settings)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        direct = inelastic_response(stored_record(record), 0.5, 0.05, reduction_factor=4.0, hardening=0.05)
+    assert report.content["yielding_table"]["residual_displacement"] == [direct.residual_displacement]
+    assert "kinematic hardening α = 0.05" in report.content["yielding_table"]["method"][0]
+    path = write_report(report, tmp_path / "hardening.xlsx")
+    assert all(c.ok for c in verify_workbook(path))
+    book = openpyxl.load_workbook(path)
+    _, ref = book.defined_names["gs_hardening"].attr_text.split("!")
+    book["Audit"][ref.replace("$", "")].value = 0.0
+    book.save(tmp_path / "edited.xlsx")
+    assert "yielding_table" in {c.block for c in verify_workbook(tmp_path / "edited.xlsx") if not c.ok}
+
+
+@pytest.mark.parametrize(
+    ("changes", "match"),
+    [
+        ({"oscillators": (Oscillator("tank", 1.0, 0.02, 0.0),)}, r"oscillator 'tank': reduction factor R must be a number > 0, got 0.0"),
+        ({"oscillators": (Oscillator("tank", 1.0, 0.02, float("nan")),)}, r"oscillator 'tank': reduction factor R .* got nan"),
+        ({"hardening": 1.0}, r"hardening \(post-yield stiffness ratio α\) must be a number in \[0, 1\), got 1.0"),
+    ],
+)
+def test_bad_yielding_settings_are_named(changes, match):
+    """A reduction factor <= 0 or NaN names the oscillator; a hardening outside [0, 1) names the setting."""
+    record = synthetic_record(1.0, 0.01, pga=0.2, seed=1)
+    with pytest.raises(ValueError, match=match):
+        build_report(record, ReportSettings(periods=(0.5, 1.0), dampings=(0.05,), **changes))
