@@ -3,7 +3,10 @@
 An input workbook is only read, never written: the file's bytes are read
 into memory and openpyxl loads that copy. Cells are found through defined
 names (the calculation-package template, ``templates.INPUT_NAMES``) or through an
-explicit ``SHEET!RANGE`` for the record. Every cell is checked by the
+explicit ``SHEET!RANGE`` for the record. Oscillators may carry a strength
+reduction factor R (``input_peak_reduction_factors`` or
+``gs_in_oscillator_reduction_factors``, cell for cell beside the periods; a
+blank cell keeps that oscillator elastic only). Every cell is checked by the
 worksheet-function entrance (``_cells``), so messages are the same as in the
 worksheet functions and name the range and row.
 """

@@ -1,12 +1,15 @@
 """Re-check a result workbook: recompute every result block from its stored record and settings.
 
 The record, its unit and time step, the spectrum periods and dampings, the
-method and the oscillators are read back through the workbook's defined
-names; ``report.build_report`` recomputes the content, ``report_render``
-lays it out in memory with the same layout, and every cell of every checked
-block is compared with the stored one (numbers to a relative tolerance,
-text and formulas exactly). The record's SHA-256 is compared with the one
-on the Audit sheet.
+method, the oscillators (with their reduction factors R from the Peaks
+sheet's elastic table, blank for elastic only) and the hardening ratio of the
+yielding oscillators are read back through the workbook's defined names;
+``report.build_report`` recomputes the content, ``report_render`` lays it
+out in memory with the same layout, and every cell of every checked block
+(the yielding table and the Summary's yielding line among them) is
+compared with the stored one (numbers to a relative tolerance, text and
+formulas exactly). The record's SHA-256 is compared with the one on the
+Audit sheet.
 """
 
 from __future__ import annotations
