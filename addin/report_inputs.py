@@ -107,9 +107,14 @@ def settings_from_cells(
         if cell is None:
             raise InputError("the workbook has no named time-step cell (input_dt); pass --dt SECONDS")
         dt = _cells.positive(cell, "the time-step cell", "s")
-    if unit is None:
+    if unit is None:  # never assumed: a wrong unit scales every result
         cell = get("unit")
-        unit = "g" if cell is None else _cells.unit(cell, "the unit cell", ACCELERATION_UNITS, "g")
+        if cell is None:
+            raise InputError(
+                "the record unit is not given: fill the unit cell (input_unit) or pass --unit "
+                f"({', '.join(ACCELERATION_UNITS)})"
+            )
+        unit = _cells.unit(cell, "the unit cell", ACCELERATION_UNITS)
     name_cell = get("record_name")
     name = _cells.text(name_cell, "the record-name cell", "") if name_cell is not None else ""
     record = Record(accel, dt, unit, name=name or source)

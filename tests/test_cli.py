@@ -179,10 +179,21 @@ def test_fill_reports_a_bad_cell_in_one_line(tmp_path, capsys):
     book = openpyxl.load_workbook(source)
     book["Ground motion"]["B30"] = "n/a"
     book.save(source)
-    assert main(["fill", str(source), "--out", str(tmp_path / "o.xlsx"), "--record", reference, "--dt", "0.01"]) == 2
+    out = tmp_path / "o.xlsx"
+    assert main(["fill", str(source), "--out", str(out), "--record", reference, "--dt", "0.01", "--unit", "g"]) == 2
     err = capsys.readouterr().err.strip()
     assert err == "groundstep fill: error: row 30 of the acceleration range holds the text 'n/a', not a number"
-    assert not (tmp_path / "o.xlsx").exists()
+    assert not out.exists()
+
+
+def test_fill_never_assumes_the_record_unit(tmp_path, capsys):
+    """Without a unit cell or --unit, fill stops (a wrong unit would scale every result)."""
+    source = tmp_path / "no_unit.xlsx"
+    reference = _input_book(source, synthetic_record(1.0, 0.01, seed=1))
+    assert main(["fill", str(source), "--out", str(tmp_path / "o.xlsx"), "--record", reference, "--dt", "0.01"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert err == ("groundstep fill: error: the record unit is not given: fill the unit cell (input_unit) "
+                   "or pass --unit (g, m/s2, cm/s2, gal, mm/s2, in/s2, ft/s2)")
 
 
 def test_fill_refuses_to_write_over_its_input(tmp_path, capsys):
@@ -337,6 +348,6 @@ def test_fill_reports_a_bad_reduction_factor_cell(tmp_path, capsys):
             book.defined_names[name] = DefinedName(name, attr_text=f"'Ground motion'!{ref}")
         book.save(source)
         code = main(["fill", str(source), "--out", str(tmp_path / "o.xlsx"), "--record", "'Ground motion'!B1:B200",
-                     "--dt", "0.01", "--periods", "0.2,2,5"])  # fmt: skip
+                     "--dt", "0.01", "--unit", "g", "--periods", "0.2,2,5"])  # fmt: skip
         assert code == 2
         assert capsys.readouterr().err.strip() == f"groundstep fill: error: {message}"

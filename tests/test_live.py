@@ -239,6 +239,7 @@ def test_fill_open_book_reads_reduction_factors():
     column = [[v] for v in record.accel_in("g").tolist()]
     book.names.append(FakeName(book.names, "gs_in_record", "=Input!$B$1:$B$201", column))
     book.names.append(FakeName(book.names, "gs_in_dt", "=Input!$E$2", [[0.01]]))
+    book.names.append(FakeName(book.names, "gs_in_unit", "=Input!$E$3", [["g"]]))
     book.names.append(FakeName(book.names, "gs_in_oscillator_periods", "=Input!$G$1:$G$4", [["T [s]"], [0.3], [0.9], [2.0]]))
     factors = [["R"], [4.0], [None], [1.5]]  # a header, then R beside each period; the 0.9 s oscillator stays elastic
     book.names.append(FakeName(book.names, "gs_in_oscillator_reduction_factors", "=Input!$H$1:$H$4", factors))
