@@ -61,7 +61,7 @@ class OpenpyxlWriter:
         ws = self.book[sheet]
         plot = ScatterChart()
         plot.title = chart.title
-        plot.style = 13
+        plot.style = 2  # one distinct colour per series (one per damping)
         plot.x_axis.title = chart.x_title
         plot.y_axis.title = chart.y_title
         plot.width, plot.height = chart.width_cm, chart.height_cm
@@ -70,6 +70,9 @@ class OpenpyxlWriter:
         plot.y_axis.delete = False
         if chart.log_x:
             plot.x_axis.scaling.logBase = 10
+        # plain axis labels, not the scientific format of the table cells
+        plot.x_axis.number_format = "General"
+        plot.y_axis.number_format = "General"
         x_ref = Reference(self.book[x.sheet], min_col=x.column, min_row=x.first_row, max_row=x.last_row)
         for title, y in series:
             y_ref = Reference(self.book[y.sheet], min_col=y.column, min_row=y.first_row, max_row=y.last_row)
