@@ -16,10 +16,10 @@ eight coefficients differ between methods (built in ``_coefficients.py``).
 total acceleration follows from equilibrium, ü + ü_g = -(c·v + k·u), with
 c = A[8] = 2ζω and k = A[9] = ω².
 
-Histories at the record's samples use the map of s sub-steps composed into
-one record step (``compose``); peaks are read at every sub-step (``peaks``,
-``substep_peaks``), as if the record had been resampled linearly onto the
-sub-step grid.
+A record step of s sub-steps applies the one-sub-step map s times with the
+load interpolated linearly; histories are kept at the record's samples and
+peaks are read at every sub-step (``history``, ``peaks``), as if the record
+had been resampled linearly onto the sub-step grid.
 """
 
 from __future__ import annotations
@@ -120,84 +120,39 @@ def peaks(load, coef, substeps, starts, u0, v0, out):
 
 
 @njit(cache=True)
-def substep_peaks(load, coef, substeps, u0, v0, out):
-    """Peaks of one oscillator (column 0 of the ONE-sub-step `coef`) and their times.
+def history(load, coef, substeps, u0, v0, u, v, out):
+    """Histories of one oscillator at the samples, and its peaks read at every sub-step.
 
-    `out` (6,) receives max |u|, max |v|, max |ü + ü_g| over every sub-step,
-    then the time of the first occurrence of each, in record steps (multiply
-    by dt for seconds).
+    Parameters
+    ----------
+    load : (n_samples,) float64, p = -ü_g [m/s²]
+    coef : (10, 1) float64, the map of ONE sub-step (h = dt / substeps)
+    substeps : int, sub-steps per record step (load linear in between)
+    u0, v0 : float, initial state
+    u, v : (n_samples,) float64, filled with the state at each sample
+    out : (6,) float64, filled with max |u|, max |v|, max |ü + ü_g| over
+        every sub-step, then the time of the first occurrence of each, in
+        record steps (multiply by dt for seconds)
     """
     s = substeps
-    u, v = u0, v0
     c, k = coef[8, 0], coef[9, 0]
-    pu, pv, pa = abs(u), abs(v), abs(c * v + k * u)
+    ui, vi = u0, v0
+    u[0], v[0] = ui, vi
+    pu, pv, pa = abs(ui), abs(vi), abs(c * vi + k * ui)
     tu, tv, ta = 0.0, 0.0, 0.0
     for i in range(load.shape[0] - 1):
         p0 = load[i]
         dp = (load[i + 1] - p0) / s
         for sub in range(s):
-            u, v = _advance(coef, 0, u, v, p0 + dp * sub, p0 + dp * (sub + 1))
+            ui, vi = _advance(coef, 0, ui, vi, p0 + dp * sub, p0 + dp * (sub + 1))
             when = i + (sub + 1) / s
-            if abs(u) > pu:
-                pu, tu = abs(u), when
-            if abs(v) > pv:
-                pv, tv = abs(v), when
-            at = abs(c * v + k * u)
+            if abs(ui) > pu:
+                pu, tu = abs(ui), when
+            if abs(vi) > pv:
+                pv, tv = abs(vi), when
+            at = abs(c * vi + k * ui)
             if at > pa:
                 pa, ta = at, when
+        u[i + 1], v[i + 1] = ui, vi
     out[0], out[1], out[2] = pu, pv, pa
     out[3], out[4], out[5] = tu, tv, ta
-
-
-@njit(cache=True)
-def history(load, coef, u0, v0, u, v):
-    """Displacement and velocity histories of one oscillator (column 0 of `coef`).
-
-    `u` and `v` (n_samples,) are filled; u[0] = u0, v[0] = v0.
-    """
-    u[0] = u0
-    v[0] = v0
-    for i in range(load.shape[0] - 1):
-        u[i + 1], v[i + 1] = _advance(coef, 0, u[i], v[i], load[i], load[i + 1])
-
-
-@njit(cache=True)
-def compose(coef, substeps):
-    """Coefficients of `substeps[j]` steps of size h = dt/substeps[j] in a row.
-
-    `coef` holds the one-sub-step map of each oscillator. The load inside a
-    record step is linear, so sub-step m (0-based) of s runs from
-    p0 + (p1 - p0)·m/s to p0 + (p1 - p0)·(m + 1)/s and the composition is again
-    an affine map in (u0, v0, p0, p1). Rows 8 and 9 are copied.
-    """
-    n_osc = coef.shape[1]
-    out = coef.copy()
-    for j in range(n_osc):
-        s = substeps[j]
-        if s == 1:
-            continue
-        # total map: [u; v] = T @ [u0; v0] + P0 * p0 + P1 * p1
-        t00, t01, t10, t11 = 1.0, 0.0, 0.0, 1.0
-        q0u, q0v, q1u, q1v = 0.0, 0.0, 0.0, 0.0
-        a00, a01, a10, a11 = coef[0, j], coef[1, j], coef[2, j], coef[3, j]
-        b0u, b1u, b0v, b1v = coef[4, j], coef[5, j], coef[6, j], coef[7, j]
-        for m in range(s):
-            w0 = m / s  # weight of p1 in the sub-step's starting load
-            w1 = (m + 1) / s  # ... and in its ending load
-            t00, t01, t10, t11 = (
-                a00 * t00 + a01 * t10,
-                a00 * t01 + a01 * t11,
-                a10 * t00 + a11 * t10,
-                a10 * t01 + a11 * t11,
-            )
-            q0u, q0v = (
-                a00 * q0u + a01 * q0v + b0u * (1.0 - w0) + b1u * (1.0 - w1),
-                a10 * q0u + a11 * q0v + b0v * (1.0 - w0) + b1v * (1.0 - w1),
-            )
-            q1u, q1v = (
-                a00 * q1u + a01 * q1v + b0u * w0 + b1u * w1,
-                a10 * q1u + a11 * q1v + b0v * w0 + b1v * w1,
-            )
-        out[0, j], out[1, j], out[2, j], out[3, j] = t00, t01, t10, t11
-        out[4, j], out[5, j], out[6, j], out[7, j] = q0u, q1u, q0v, q1v
-    return out

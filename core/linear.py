@@ -140,10 +140,9 @@ def linear_response(
         )
     displacement = np.empty(record.n)
     velocity = np.empty(record.n)
-    _kernels.history(load, _kernels.compose(coef, substeps), u0, v0, displacement, velocity)
-    total = -(coef[8, 0] * velocity + coef[9, 0] * displacement)
     found = np.empty(6)
-    _kernels.substep_peaks(load, coef, int(substeps[0]), u0, v0, found)
+    _kernels.history(load, coef, int(substeps[0]), u0, v0, displacement, velocity, found)
+    total = -(coef[8, 0] * velocity + coef[9, 0] * displacement)
     sd, sv, sa = (float(value) for value in found[:3])
     when = [float(steps * record.dt) for steps in found[3:]]
     omega = 2.0 * math.pi / period
