@@ -14,7 +14,7 @@ from ._methods import Method, resolve_method, substep_counts
 from ._units import STANDARD_GRAVITY
 from .inelastic_results import ConvergenceError, ConvergenceWarning, DuctilitySpectrum, InelasticResponse
 from .linear import DEFAULT_STEP_RATIO, SubstepWarning, elastic_spectrum, linear_response
-from .linear import _check_ratio, _check_record, _limit_text  # shared checks, one source
+from .linear import _check_ratio, _check_record, _warn_grid_substeps, _warn_substeps  # one source
 from ._ductility_search import MAX_PIECES as _MAX_PIECES
 from ._ductility_search import Solver as _Solver
 from ._ductility_search import raise_if_failed as _raise_if_failed
@@ -168,12 +168,7 @@ def inelastic_response(
                 "(are all samples zero?); give `yield_coefficient` instead"
             )
         fy = elastic_force / reduction
-    if substeps > 1:
-        warnings.warn(
-            f"period {period:g} s with record step {record.dt:g} s: each step split into "
-            f"{substeps} sub-steps (Δt/T <= {_limit_text(resolved, ratio)})",
-            SubstepWarning, stacklevel=2,
-        )
+    _warn_substeps(period, record.dt, substeps, resolved, ratio)
 
     omega = 2.0 * math.pi / period
     k, c = omega * omega, 2.0 * damping * omega
@@ -333,13 +328,7 @@ def _ductility_spectrum(
             f"the record produces no elastic force at `periods` index {index} "
             f"({period_values[index]!r} s); are all samples zero?"
         )
-    if substeps.max() > 1:
-        split = int(np.count_nonzero(substeps > 1))
-        warnings.warn(
-            f"record step {record.dt:g} s: {split} of {substeps.size} periods sub-stepped, up to "
-            f"{substeps.max()} sub-steps (Δt/T <= {_limit_text(resolved, ratio)})",
-            SubstepWarning, stacklevel=3,
-        )
+    _warn_grid_substeps(record.dt, substeps, "periods", resolved, ratio, stacklevel=4)
     shape = (targets.size, period_values.size)
     reduction = np.ones(shape)
     achieved = np.ones(shape)

@@ -131,13 +131,7 @@ def linear_response(
         )  # fmt: skip
 
     coef, substeps = _step_coefficients(record.dt, np.array([period]), np.array([damping]), resolved, ratio)
-    if substeps[0] > 1:
-        warnings.warn(
-            f"period {period:g} s with record step {record.dt:g} s: each step split into "
-            f"{substeps[0]} sub-steps (Δt/T <= {_limit_text(resolved, ratio)})",
-            SubstepWarning,
-            stacklevel=2,
-        )
+    _warn_substeps(period, record.dt, int(substeps[0]), resolved, ratio)
     displacement = np.empty(record.n)
     velocity = np.empty(record.n)
     found = np.empty(6)
@@ -234,14 +228,7 @@ def elastic_spectrum(
         unsorted[:, order] = found
         peaks[:, moving] = unsorted
     peaks[2, ~moving] = record.pga
-    if substeps.max() > 1:
-        split = int(np.count_nonzero(substeps > 1))
-        warnings.warn(
-            f"record step {record.dt:g} s: {split} of {substeps.size} oscillators sub-stepped, "
-            f"up to {substeps.max()} sub-steps (Δt/T <= {_limit_text(resolved, ratio)})",
-            SubstepWarning,
-            stacklevel=2,
-        )
+    _warn_grid_substeps(record.dt, substeps, "oscillators", resolved, ratio)
     shape = grid_t.shape
     omega = np.zeros(flat_t.size)
     omega[moving] = 2.0 * np.pi / flat_t[moving]
@@ -299,6 +286,34 @@ def _check_ratio(max_step_ratio: float | None) -> float | None:
 def _limit_text(method: Method, ratio: float | None) -> str:
     limit = min(math.inf if ratio is None else ratio, method.stability_limit)
     return f"{limit:.4g}"
+
+
+def _warn_substeps(period: float, dt: float, substeps: int, method: Method, ratio: float | None,
+                   stacklevel: int = 3) -> None:  # fmt: skip
+    """SubstepWarning for one oscillator whose record step was split (none when substeps is 1).
+
+    `stacklevel` counts from the caller of this helper's caller: the user's line by default.
+    """
+    if substeps > 1:
+        warnings.warn(
+            f"period {period:g} s with record step {dt:g} s: each step split into "
+            f"{substeps} sub-steps (Δt/T <= {_limit_text(method, ratio)})",
+            SubstepWarning,
+            stacklevel=stacklevel,
+        )
+
+
+def _warn_grid_substeps(dt: float, substeps: NDArray[np.int64], what: str, method: Method,
+                        ratio: float | None, stacklevel: int = 3) -> None:  # fmt: skip
+    """One SubstepWarning for a grid of `what` ("oscillators", "periods") if any was split."""
+    if substeps.max() > 1:
+        split = int(np.count_nonzero(substeps > 1))
+        warnings.warn(
+            f"record step {dt:g} s: {split} of {substeps.size} {what} sub-stepped, "
+            f"up to {substeps.max()} sub-steps (Δt/T <= {_limit_text(method, ratio)})",
+            SubstepWarning,
+            stacklevel=stacklevel,
+        )
 
 
 def _step_coefficients(
