@@ -13,7 +13,7 @@ from .inelastic import ConvergenceError, ConvergenceWarning, ductility_spectrum,
 from .inelastic_results import DuctilitySpectrum, InelasticResponse
 from .linear import DEFAULT_STEP_RATIO, SubstepWarning, elastic_spectrum, linear_response, period_grid
 from .measures import arias_intensity, normalised_arias, significant_duration
-from .record import Record, RecordTextWarning
+from .record import ProcessingStep, Record, RecordTextWarning
 from .results import ElasticSpectrum, LinearResponse
 from .synthetic import filtered_noise, jennings_envelope, kanai_tajimi_psd, synthetic_record
 
@@ -34,6 +34,7 @@ __all__ = [
     "LinearResponse",
     "METHODS",
     "Method",
+    "ProcessingStep",
     "Record",
     "RecordTextWarning",
     "STANDARD_GRAVITY",

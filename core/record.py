@@ -16,7 +16,7 @@ from numpy.typing import NDArray
 from . import _validate
 from ._units import ACCELERATION_UNITS, normalise_unit
 
-__all__ = ["Record", "RecordTextWarning"]
+__all__ = ["ProcessingStep", "Record", "RecordTextWarning"]
 
 #: Largest deviation of a time value from uniform spacing, as a fraction of
 #: the step, still read as uniform. Printed time columns carry rounding of a
@@ -28,6 +28,30 @@ _SEPARATORS = re.compile(r"[,;\s]+")
 
 class RecordTextWarning(UserWarning):
     """Lines of a record file were skipped (non-numeric header lines)."""
+
+
+@dataclass(frozen=True, slots=True)
+class ProcessingStep:
+    """One operation applied to a record (baseline correction, filtering, ...).
+
+    Attributes
+    ----------
+    operation : str
+        Name of the public function that made the new record, e.g. ``"bandpass"``.
+    parameters : tuple of (str, object) pairs
+        The arguments it was called with, in SI units, as ``(name, value)`` pairs.
+    library : str
+        Library and version that did the numerical work, e.g. ``"scipy 1.17.1"``.
+    """
+
+    operation: str
+    parameters: tuple[tuple[str, object], ...] = ()
+    library: str = ""
+
+    def describe(self) -> str:
+        """One line for audit sheets: ``bandpass(low_hz=0.1, high_hz=25) [scipy 1.17.1]``."""
+        arguments = ", ".join(f"{name}={value!r}" for name, value in self.parameters)
+        return f"{self.operation}({arguments})" + (f" [{self.library}]" if self.library else "")
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -45,6 +69,15 @@ class Record:
         (alias ``"gal"``), ``"mm/s2"``, ``"in/s2"`` or ``"ft/s2"``.
     name : str, optional
         Label for reports.
+    header : tuple of str, optional
+        Header lines of the text the record was read from.
+    history : tuple of ProcessingStep, optional
+        What was done to the samples since they were read, oldest first.
+    accel_is_si : bool, default False
+        Keyword only. ``True`` when `accel` already holds m/s² (the record's
+        own ``accel`` attribute); `unit` then only names the unit results are
+        reported in. `dataclasses.replace` passes it on, so
+        ``replace(record, dt=...)`` keeps the samples as they are.
 
     Attributes
     ----------
@@ -69,13 +102,24 @@ class Record:
     unit: str = "g"
     name: str = ""
     header: tuple[str, ...] = field(default=(), repr=False)
+    history: tuple[ProcessingStep, ...] = field(default=(), repr=False)
+    accel_is_si: bool = field(default=False, repr=False, kw_only=True)
 
     def __post_init__(self) -> None:
         unit = normalise_unit(self.unit, ACCELERATION_UNITS)
         samples = _validate.as_vector(self.accel, "accel", min_size=2)
         dt = _validate.positive(self.dt, "dt")
-        si = samples * ACCELERATION_UNITS[unit]
+        si = samples if self.accel_is_si else samples * ACCELERATION_UNITS[unit]
         si.flags.writeable = False
+        history = tuple(self.history)
+        for index, step in enumerate(history):
+            if not isinstance(step, ProcessingStep):
+                raise TypeError(
+                    f"`history` must hold ProcessingStep entries; index {index} is {type(step).__name__}"
+                )
+        object.__setattr__(self, "history", history)
+        # from here on the stored samples are m/s²: replace() must not convert them again
+        object.__setattr__(self, "accel_is_si", True)
         object.__setattr__(self, "accel", si)
         object.__setattr__(self, "dt", dt)
         object.__setattr__(self, "unit", unit)

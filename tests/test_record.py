@@ -197,3 +197,27 @@ def test_time_column_is_recognised_even_with_dt_given():
     assert record.n == 50
     assert_allclose(record.accel_in("g"), np.round(0.1 * np.sin(np.arange(50)), 6), rtol=1e-15)
     assert Record.from_text("\n".join(lines[1:]), dt=0.01, time_column=False).n == 100
+
+
+def test_dataclasses_replace_keeps_samples():
+    """dataclasses.replace(record, dt=...) keeps the samples; it once multiplied them by g again."""
+    import dataclasses
+
+    record = Record([0.1, -0.2, 0.05], dt=0.01, unit="g")
+    changed = dataclasses.replace(record, dt=0.02)
+    # the samples are the same physical values: 0.1 g = 0.980665 m/s² (g = 9.80665 m/s², CGPM 1901)
+    np.testing.assert_array_equal(changed.accel, record.accel)
+    assert changed.unit == "g" and changed.dt == 0.02
+    np.testing.assert_allclose(changed.accel_in("g"), [0.1, -0.2, 0.05], rtol=1e-15)
+
+
+def test_history_holds_processing_steps_only():
+    """A record's processing history accepts ProcessingStep entries and names a wrong one by index."""
+    from groundstep.core import ProcessingStep
+
+    step = ProcessingStep("baseline_correct", (("order", 2),), "numpy 2")
+    record = Record([0.0, 1.0, 0.0], dt=0.01, unit="m/s2", history=(step,))
+    assert record.history == (step,)
+    assert step.describe() == "baseline_correct(order=2) [numpy 2]"
+    with pytest.raises(TypeError, match="index 0 is str"):
+        Record([0.0, 1.0, 0.0], dt=0.01, unit="m/s2", history=("filtered",))
