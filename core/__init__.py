@@ -7,15 +7,38 @@ spreadsheets and the command line to this API. SI units throughout
 
 from importlib.metadata import PackageNotFoundError, version
 
-from ._methods import METHODS, Method
-from ._units import ACCELERATION_UNITS, LENGTH_UNITS, STANDARD_GRAVITY
-from .inelastic import ConvergenceError, ConvergenceWarning, ductility_spectrum, inelastic_response
+from ._warm import warm_up
+from .inelastic import (
+    ConvergenceError,
+    ConvergenceWarning,
+    ductility_spectrum,
+    inelastic_response,
+)
 from .inelastic_results import DuctilitySpectrum, InelasticResponse
-from .linear import DEFAULT_STEP_RATIO, SubstepWarning, elastic_spectrum, linear_response, period_grid
+from .linear import (
+    DEFAULT_STEP_RATIO,
+    SubstepWarning,
+    elastic_spectrum,
+    linear_response,
+    period_grid,
+)
 from .measures import arias_intensity, normalised_arias, significant_duration
+from .methods import METHODS, Method, resolve_method
 from .record import ProcessingStep, Record, RecordTextWarning
 from .results import ElasticSpectrum, LinearResponse
-from .synthetic import filtered_noise, jennings_envelope, kanai_tajimi_psd, synthetic_record
+from .synthetic import (
+    filtered_noise,
+    jennings_envelope,
+    kanai_tajimi_psd,
+    synthetic_record,
+)
+from .units import (
+    ACCELERATION_UNITS,
+    LENGTH_UNITS,
+    STANDARD_GRAVITY,
+    OutputUnits,
+    output_units,
+)
 
 try:
     __version__ = version("groundstep")
@@ -24,20 +47,21 @@ except PackageNotFoundError:  # running from a source tree that was not installe
 
 __all__ = [
     "ACCELERATION_UNITS",
+    "DEFAULT_STEP_RATIO",
+    "LENGTH_UNITS",
+    "METHODS",
+    "STANDARD_GRAVITY",
     "ConvergenceError",
     "ConvergenceWarning",
-    "DEFAULT_STEP_RATIO",
     "DuctilitySpectrum",
     "ElasticSpectrum",
     "InelasticResponse",
-    "LENGTH_UNITS",
     "LinearResponse",
-    "METHODS",
     "Method",
+    "OutputUnits",
     "ProcessingStep",
     "Record",
     "RecordTextWarning",
-    "STANDARD_GRAVITY",
     "SubstepWarning",
     "__version__",
     "arias_intensity",
@@ -49,7 +73,10 @@ __all__ = [
     "kanai_tajimi_psd",
     "linear_response",
     "normalised_arias",
+    "output_units",
     "period_grid",
+    "resolve_method",
     "significant_duration",
     "synthetic_record",
+    "warm_up",
 ]

@@ -10,37 +10,60 @@ from numpy.typing import ArrayLike, NDArray
 
 from . import _kernels_inelastic as _kernels
 from . import _validate
-from ._methods import Method, resolve_method, substep_counts
-from ._units import STANDARD_GRAVITY
-from .inelastic_results import ConvergenceError, ConvergenceWarning, DuctilitySpectrum, InelasticResponse
-from .linear import DEFAULT_STEP_RATIO, SubstepWarning, elastic_spectrum, linear_response
-from .linear import _check_ratio, _check_record, _warn_grid_substeps, _warn_substeps  # one source
 from ._ductility_search import MAX_PIECES as _MAX_PIECES
 from ._ductility_search import Solver as _Solver
 from ._ductility_search import raise_if_failed as _raise_if_failed
 from ._ductility_search import search as _search
+from .checks import (
+    check_damping,
+    check_ductilities,
+    check_hardening,
+    check_integer,
+    check_method,
+    check_period,
+    check_periods,
+    check_strength,
+)
+from .defaults import (
+    DEFAULT_DAMPING,
+    DEFAULT_MAX_ITERATIONS,
+    DEFAULT_STEP_RATIO,
+    DEFAULT_TOLERANCE,
+)
+from .inelastic_results import (
+    ConvergenceError,
+    ConvergenceWarning,
+    DuctilitySpectrum,
+    InelasticResponse,
+)
+from .linear import (  # one source
+    SubstepWarning,
+    _check_ratio,
+    _check_record,
+    _warn_grid_substeps,
+    _warn_substeps,
+    elastic_spectrum,
+    linear_response,
+)
+from .methods import substep_counts
 from .record import Record
+from .units import STANDARD_GRAVITY
 
 __all__ = [
-    "ConvergenceError",
-    "ConvergenceWarning",
     "DEFAULT_MAX_ITERATIONS",
     "DEFAULT_TOLERANCE",
+    "ConvergenceError",
+    "ConvergenceWarning",
     "ductility_spectrum",
     "inelastic_response",
 ]
 
-#: Default accepted residual force, as a fraction of the reference force
-#: fy/m + max|ü_g|. The spring is piecewise linear, so Newton's method ends
-#: on the exact root; 1e-9 leaves room only for round-off.
-DEFAULT_TOLERANCE = 1e-9
-#: Default Newton iterations per step; two are the norm at a change of
-#: branch when Δt/T <= 0.1, so 20 is ample.
-DEFAULT_MAX_ITERATIONS = 20
+
+
 def inelastic_response(
     record: Record,
     period: float,
-    damping: float = 0.05,
+    damping: float = DEFAULT_DAMPING,
     *,
     yield_coefficient: float | None = None,
     reduction_factor: float | None = None,
@@ -148,11 +171,11 @@ def inelastic_response(
     True
     """
     record = _check_record(record)
-    period = _check_period(period)
+    period = check_period(period, "period", rigid=False)
     damping, alpha, resolved, ratio, relative_tolerance, iterations_allowed = _check_settings(
         damping, hardening, method, max_step_ratio, tolerance, max_iterations
     )
-    coefficient, reduction = _check_strength(yield_coefficient, reduction_factor)
+    coefficient, reduction = check_strength(yield_coefficient, reduction_factor)
 
     substeps = int(substep_counts(record.dt, np.array([period]), resolved, ratio)[0])
     with warnings.catch_warnings():
@@ -162,6 +185,7 @@ def inelastic_response(
     if coefficient is not None:
         fy = coefficient * STANDARD_GRAVITY
     else:
+        assert reduction is not None  # check_strength returns exactly one
         if elastic_force <= 0.0:
             raise ValueError(
                 "`reduction_factor` cannot set a strength: the record produces no elastic force "
@@ -216,7 +240,7 @@ def ductility_spectrum(
     record: Record,
     periods: ArrayLike,
     ductilities: ArrayLike,
-    damping: float = 0.05,
+    damping: float = DEFAULT_DAMPING,
     hardening: float = 0.0,
     *,
     method: str | tuple[float, float] = "average",
@@ -314,8 +338,8 @@ def _ductility_spectrum(
 ) -> DuctilitySpectrum:  # fmt: skip
     """`ductility_spectrum`; fills `stats` (kernel time and oscillator-steps) when given."""
     record = _check_record(record)
-    period_values = _validate.periods(periods, "periods")
-    targets = _check_ductilities(ductilities)
+    period_values = check_periods(periods, "periods")
+    targets = check_ductilities(ductilities, "ductilities")
     damping, alpha, resolved, ratio, relative_tolerance, iterations_allowed = _check_settings(
         damping, hardening, method, max_step_ratio, tolerance, max_iterations
     )
@@ -365,55 +389,13 @@ def _elastic_forces(record, periods, damping, method, ratio) -> NDArray[np.float
     return spectrum.psa[0]
 
 
-def _check_period(period: object) -> float:
-    value = _validate.periods(period, "period")
-    if value.size != 1:
-        raise ValueError(f"`period` must be one number, got {value.size}; use ductility_spectrum for many")
-    if value[0] == 0.0:
-        raise ValueError(
-            "`period` 0 is a rigid oscillator: it has no yield displacement, so its ductility is "
-            "undefined; give a period > 0"
-        )
-    return float(value[0])
-
-
 def _check_settings(damping, hardening, method, max_step_ratio, tolerance, max_iterations):
     """The settings shared by both public functions, checked in signature order."""
     return (
-        float(_validate.dampings(damping, "damping")[0]), _check_hardening(hardening), _check_method(method),
-        _check_ratio(max_step_ratio), _check_tolerance(tolerance), _check_iterations(max_iterations),
+        check_damping(damping, "damping"), check_hardening(hardening, "hardening"),
+        check_method(method, "method", yielding=True), _check_ratio(max_step_ratio),
+        _check_tolerance(tolerance), check_integer(max_iterations, "max_iterations", 1),
     )  # fmt: skip
-
-
-def _check_hardening(hardening: object) -> float:
-    alpha = _validate.as_float(hardening, "hardening")
-    if alpha < 0.0:
-        raise ValueError(
-            f"`hardening` must be >= 0 (post-yield stiffness as a fraction of the elastic stiffness; "
-            f"softening is not modelled), got {alpha!r}"
-        )
-    if alpha >= 1.0:
-        hint = f"; {alpha:g} looks like a percentage: enter {alpha / 100:g}" if alpha <= 100.0 else ""
-        raise ValueError(
-            f"`hardening` must be < 1 (the post-yield stiffness must be below the elastic stiffness; "
-            f"for a linear oscillator use linear_response), got {alpha!r}{hint}"
-        )
-    return alpha
-
-
-def _check_method(method: object) -> Method:
-    resolved = resolve_method(method)
-    if not resolved.is_newmark:
-        raise ValueError(
-            "`method` 'exact' applies to linear oscillators only; a yielding oscillator needs an "
-            "implicit Newmark method: use 'average' or 'linear'"
-        )
-    if resolved.beta <= 0.0:
-        raise ValueError(
-            f"`method` beta must be > 0 for the implicit yielding solver (beta 0 is explicit), "
-            f"got {resolved.beta!r}"
-        )
-    return resolved
 
 
 def _check_tolerance(tolerance: object) -> float:
@@ -421,40 +403,3 @@ def _check_tolerance(tolerance: object) -> float:
     if value >= 0.01:
         raise ValueError(f"`tolerance` must be below 0.01 (a fraction of the reference force), got {value!r}")
     return value
-
-
-def _check_iterations(max_iterations: object) -> int:
-    if isinstance(max_iterations, bool) or not isinstance(max_iterations, (int, np.integer)):
-        kind = type(max_iterations).__name__
-        raise TypeError(f"`max_iterations` must be an integer, got {kind} {max_iterations!r}")
-    if max_iterations < 1:
-        raise ValueError(f"`max_iterations` must be >= 1, got {max_iterations!r}")
-    return int(max_iterations)
-
-
-def _check_strength(yield_coefficient: object, reduction_factor: object) -> tuple[float | None, float]:
-    if yield_coefficient is not None and reduction_factor is not None:
-        raise ValueError(
-            "give exactly one of `yield_coefficient` and `reduction_factor`, not both "
-            f"(got {yield_coefficient!r} and {reduction_factor!r})"
-        )
-    if yield_coefficient is None and reduction_factor is None:
-        raise ValueError(
-            "give the strength as `yield_coefficient` (fy/(m·g)) or `reduction_factor` "
-            "(peak elastic force / fy); got neither"
-        )
-    if yield_coefficient is not None:
-        return _validate.positive(yield_coefficient, "yield_coefficient"), math.nan
-    return None, _validate.positive(reduction_factor, "reduction_factor")
-
-
-def _check_ductilities(ductilities: ArrayLike) -> NDArray[np.float64]:
-    values = _validate.as_vector(ductilities, "ductilities")
-    low = np.flatnonzero(values < 1.0)
-    if low.size:
-        index = int(low[0])
-        raise ValueError(
-            f"`ductilities` must be >= 1 (peak over yield displacement); "
-            f"index {index} holds {float(values[index])!r}"
-        )
-    return values

@@ -9,15 +9,20 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from . import _coefficients, _kernels, _validate
-from ._methods import Method, resolve_method, substep_counts
+from .checks import (
+    check_damping,
+    check_dampings,
+    check_integer,
+    check_method,
+    check_period,
+    check_periods,
+)
+from .defaults import DEFAULT_DAMPING, DEFAULT_STEP_RATIO
+from .methods import Method, substep_counts
 from .record import Record
 from .results import ElasticSpectrum, LinearResponse
 
 __all__ = ["DEFAULT_STEP_RATIO", "SubstepWarning", "elastic_spectrum", "linear_response", "period_grid"]
-
-#: Default largest Δt/T for Newmark stepping: a tenth of the period is
-#: common practice for accuracy of peak response.
-DEFAULT_STEP_RATIO = 0.1
 
 
 class SubstepWarning(UserWarning):
@@ -27,8 +32,8 @@ class SubstepWarning(UserWarning):
 def linear_response(
     record: Record,
     period: float,
-    damping: float = 0.05,
-    method: str | tuple[float, float] = "average",
+    damping: float = DEFAULT_DAMPING,
+    method: str | tuple[float, float] | Method = "average",
     *,
     max_step_ratio: float | None = DEFAULT_STEP_RATIO,
     initial_displacement: float = 0.0,
@@ -105,12 +110,9 @@ def linear_response(
     True
     """
     record = _check_record(record)
-    period_value = _validate.periods(period, "period")
-    if period_value.size != 1:
-        raise ValueError(f"`period` must be one number, got {period_value.size}; use elastic_spectrum for many")
-    period = float(period_value[0])
-    damping = float(_validate.dampings(damping, "damping")[0])
-    resolved = resolve_method(method)
+    period = check_period(period, "period")
+    damping = check_damping(damping, "damping")
+    resolved = check_method(method)
     ratio = _check_ratio(max_step_ratio)
     u0 = _validate.as_float(initial_displacement, "initial_displacement")
     v0 = _validate.as_float(initial_velocity, "initial_velocity")
@@ -151,8 +153,8 @@ def linear_response(
 def elastic_spectrum(
     record: Record,
     periods: ArrayLike,
-    dampings: ArrayLike = 0.05,
-    method: str | tuple[float, float] = "average",
+    dampings: ArrayLike = DEFAULT_DAMPING,
+    method: str | tuple[float, float] | Method = "average",
     *,
     max_step_ratio: float | None = DEFAULT_STEP_RATIO,
 ) -> ElasticSpectrum:
@@ -206,9 +208,9 @@ def elastic_spectrum(
     (2, 50)
     """
     record = _check_record(record)
-    period_values = _validate.periods(periods, "periods")
-    damping_values = _validate.dampings(dampings, "dampings")
-    resolved = resolve_method(method)
+    period_values = check_periods(periods, "periods")
+    damping_values = check_dampings(dampings, "dampings")
+    resolved = check_method(method)
     ratio = _check_ratio(max_step_ratio)
 
     grid_z, grid_t = np.meshgrid(damping_values, period_values, indexing="ij")
@@ -252,6 +254,17 @@ def period_grid(shortest: float = 0.01, longest: float = 10.0, count: int = 100)
     count : int, default 100
         Number of periods, >= 2.
 
+    Returns
+    -------
+    ndarray (count,)
+        Periods [s], ascending.
+
+    Raises
+    ------
+    TypeError, ValueError
+        A bound that is not a positive number, `longest` <= `shortest`, or
+        `count` not an integer >= 2.
+
     Examples
     --------
     >>> period_grid(0.1, 10.0, 3)
@@ -261,9 +274,7 @@ def period_grid(shortest: float = 0.01, longest: float = 10.0, count: int = 100)
     high = _validate.positive(longest, "longest")
     if not high > low:
         raise ValueError(f"`longest` must exceed `shortest`, got {low!r} and {high!r}")
-    if isinstance(count, bool) or not isinstance(count, (int, np.integer)) or count < 2:
-        raise ValueError(f"`count` must be an integer >= 2, got {count!r}")
-    grid = np.geomspace(low, high, int(count))
+    grid = np.geomspace(low, high, check_integer(count, "count", 2))
     grid[0], grid[-1] = low, high
     return grid
 

@@ -14,7 +14,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from . import _validate
-from ._units import ACCELERATION_UNITS, normalise_unit
+from .units import ACCELERATION_UNITS, normalise_unit
 
 __all__ = ["ProcessingStep", "Record", "RecordTextWarning"]
 
@@ -207,7 +207,7 @@ class Record:
         *,
         time_column: bool | None = None,
         name: str | None = None,
-    ) -> "Record":
+    ) -> Record:
         """Read a record from plain numeric text or CSV.
 
         Parameters

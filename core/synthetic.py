@@ -18,8 +18,8 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from . import _validate
-from ._units import ACCELERATION_UNITS, normalise_unit
 from .record import Record
+from .units import ACCELERATION_UNITS, normalise_unit
 
 __all__ = ["filtered_noise", "jennings_envelope", "kanai_tajimi_psd", "synthetic_record"]
 
@@ -268,7 +268,7 @@ def synthetic_record(
     step = _validate.positive(dt, "dt")
     peak = _validate.positive(pga, "pga")
     unit = normalise_unit(unit, ACCELERATION_UNITS)
-    n = int(round(total / step)) + 1
+    n = round(total / step) + 1
     if n < 8:
         raise ValueError(f"`duration` {total!r} s at `dt` {step!r} s gives {n} samples; at least 8 are needed")
     time = np.arange(n) * step

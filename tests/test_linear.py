@@ -7,10 +7,15 @@ import warnings
 
 import numpy as np
 import pytest
+from groundstep.core import (
+    Record,
+    SubstepWarning,
+    elastic_spectrum,
+    linear_response,
+    period_grid,
+)
 from numpy.testing import assert_allclose
 from scipy import signal
-
-from groundstep.core import Record, SubstepWarning, elastic_spectrum, linear_response, period_grid
 
 
 def _random_record(seed: int, n: int = 1500, dt: float = 0.01) -> Record:
@@ -346,7 +351,7 @@ def test_period_grid():
         ({"period": -0.1}, ValueError, r"`period` must be >= 0 s; index 0 holds -0.1"),
         ({"period": [0.1, 0.2]}, ValueError, r"`period` must be one number"),
         ({"damping": 5.0}, ValueError, r"5 looks like a percentage: enter 0.05"),
-        ({"damping": 1.0}, ValueError, r"ratio of critical damping in \[0, 1\); index 0 holds 1.0"),
+        ({"damping": 1.0}, ValueError, r"`damping` must be a ratio of critical damping in \[0, 1\); got 1.0"),
         ({"damping": -0.01}, ValueError, r"`damping` must be >= 0"),
         ({"damping": float("nan")}, ValueError, r"`damping` must be finite"),
         ({"method": "wilson"}, ValueError, r"`method` 'wilson' is not known"),

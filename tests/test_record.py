@@ -6,9 +6,8 @@ import warnings
 
 import numpy as np
 import pytest
-from numpy.testing import assert_allclose, assert_array_equal
-
 from groundstep.core import STANDARD_GRAVITY, Record, RecordTextWarning
+from numpy.testing import assert_allclose, assert_array_equal
 
 
 def test_standard_gravity_value():
