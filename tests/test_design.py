@@ -159,7 +159,7 @@ def test_en1998_beyond_four_seconds_warns():
         ("table", {"periods_table": [0.1, 0.05], "sa_table": [1, 1]}, ValueError, "increase strictly"),
         ("table", {"periods_table": [0.0, 1.0], "sa_table": [1, 1]}, ValueError, "must be > 0 s"),
         ("table", {"periods_table": [0.2, 1.0], "sa_table": [1, 1]}, ValueError, "outside the table"),
-        ("table", {"periods_table": [0.1, 1.0], "sa_table": [1]}, ValueError, "one value per period"),
+        ("table", {"periods_table": [0.1, 1.0], "sa_table": [1, 1, 1]}, ValueError, "one value per period"),
     ],
 )
 def test_bad_parameters_are_refused_with_a_message(standard, kwargs, error, match):
