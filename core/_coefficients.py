@@ -12,6 +12,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ._kernels import N_COEFFICIENTS
+from ._newmark import linear_step, newmark_constants
 
 #: Above this ωh the exact map uses the closed form; at or below it a power
 #: series, which avoids the cancellation of the closed form for small ωh.
@@ -20,28 +21,13 @@ _SERIES_LIMIT = 1.0
 _SERIES_TERMS = 26
 
 
-def _newmark_map(omega, zeta, h, beta, gamma, u0, v0, p0, p1):
-    """One Newmark step of a unit-mass oscillator (Newmark 1959, eqs. for u and v).
-
-    u1 = u0 + h·v0 + h²·[(1/2 - β)·a0 + β·a1]
-    v1 = v0 + h·[(1 - γ)·a0 + γ·a1]
-    a1 = p1 - c·v1 - k·u1,  a0 = p0 - c·v0 - k·u0 (equilibrium at both ends),
-    solved for a1 in closed form.
-    """
-    c = 2.0 * zeta * omega
-    k = omega * omega
-    a0 = p0 - c * v0 - k * u0
-    u_pred = u0 + h * v0 + h * h * (0.5 - beta) * a0
-    v_pred = v0 + h * (1.0 - gamma) * a0
-    a1 = (p1 - k * u_pred - c * v_pred) / (1.0 + gamma * h * c + beta * h * h * k)
-    return u_pred + beta * h * h * a1, v_pred + gamma * h * a1
-
-
 def newmark(omega, zeta, h, beta, gamma) -> NDArray[np.float64]:
-    """Map coefficients of one Newmark step of size `h` for each oscillator.
+    """Map coefficients of one Newmark step of size `h` for each oscillator (β > 0).
 
-    The map is linear in (u0, v0, p0, p1), so its coefficients are the
-    step's response to each unit input in turn.
+    The step is ``_newmark.linear_step`` on the constants of
+    ``_newmark.newmark_constants``, the ones the yielding kernels use. It is
+    linear in (u0, v0, p0, p1), so its coefficients are the step's response
+    to each unit input in turn.
     """
     omega = np.asarray(omega, dtype=np.float64)
     zeta = np.asarray(zeta, dtype=np.float64)
@@ -51,8 +37,10 @@ def newmark(omega, zeta, h, beta, gamma) -> NDArray[np.float64]:
     zero, one = np.zeros(n), np.ones(n)
     rows = ((0, 2), (1, 3), (4, 6), (5, 7))
     inputs = ((one, zero, zero, zero), (zero, one, zero, zero), (zero, zero, one, zero), (zero, zero, zero, one))
+    constants = newmark_constants.py_func(np.broadcast_to(h, (n,)), beta, gamma)
+    c, k = 2.0 * zeta * omega, omega * omega
     for (row_u, row_v), unit_input in zip(rows, inputs):
-        out[row_u], out[row_v] = _newmark_map(omega, zeta, h, beta, gamma, *unit_input)
+        out[row_u], out[row_v] = linear_step(constants, c, k, *unit_input)
     out[8] = 2.0 * zeta * omega
     out[9] = omega * omega
     return out

@@ -27,6 +27,9 @@ bounding lines α·k·u ± (1 - α)·fy. Because fs(d) is piecewise linear,
 Newton's method lands on the exact root once it is on the right branch;
 two iterations are the norm at a change of branch, one otherwise.
 
+The constants A, B1 = 1/(β h), B2 = 1/(2β) - 1, G, G1 = 1 - γ/β and
+G2 = h·(1 - γ/(2β)) come from ``_newmark.newmark_constants``, the same
+function the linear map is built from (``_coefficients.newmark``).
 ``_predict``, ``_spring`` and ``_step_constants`` are that recurrence; both
 kernels here (one history with energies and step sub-division, many peaks
 interleaved so the loop over oscillators vectorises) call them.
@@ -36,6 +39,8 @@ from __future__ import annotations
 
 import numpy as np
 from numba import njit, prange
+
+from ._newmark import newmark_constants
 
 #: Oscillators per parallel chunk (as in ``_kernels.py``): two dozen state
 #: and constant vectors of this length stay in the L1 cache and vectorise.
@@ -56,13 +61,8 @@ INFO_PEAK_TIME = 9  # first time [s] of that peak
 
 @njit(cache=True, inline="always")
 def _step_constants(h, beta, gamma, k, c, hardening):
-    """Constants of a Newmark step of size `h` (module docstring)."""
-    a_coef = 1.0 / (beta * h * h)
-    b1 = 1.0 / (beta * h)
-    b2 = 0.5 / beta - 1.0
-    g_coef = gamma / (beta * h)
-    g1 = 1.0 - gamma / beta
-    g2 = h * (1.0 - 0.5 * gamma / beta)
+    """Constants of a Newmark step of size `h`: the shared ``newmark_constants`` and the tangents."""
+    a_coef, b1, b2, g_coef, g1, g2 = newmark_constants(h, beta, gamma)
     m_eff = a_coef + c * g_coef
     inv_el = 1.0 / (m_eff + k)
     inv_pl = 1.0 / (m_eff + hardening * k)

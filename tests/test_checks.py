@@ -7,6 +7,8 @@ import inspect
 
 import numpy as np
 import pytest
+from numpy.testing import assert_allclose
+
 from groundstep.core import (
     Record,
     checks,
@@ -28,7 +30,6 @@ from groundstep.core.checks import (
     check_strength,
     percentage_hint,
 )
-from numpy.testing import assert_allclose
 
 
 @pytest.mark.parametrize("module", [checks, defaults])

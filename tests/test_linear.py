@@ -7,6 +7,9 @@ import warnings
 
 import numpy as np
 import pytest
+from numpy.testing import assert_allclose
+from scipy import signal
+
 from groundstep.core import (
     Record,
     SubstepWarning,
@@ -14,8 +17,6 @@ from groundstep.core import (
     linear_response,
     period_grid,
 )
-from numpy.testing import assert_allclose
-from scipy import signal
 
 
 def _random_record(seed: int, n: int = 1500, dt: float = 0.01) -> Record:
@@ -251,12 +252,42 @@ def test_linear_acceleration_is_kept_stable_by_the_public_api():
 
 def test_stability_limits():
     """Critical Δt/T: √3/π for linear acceleration, 1/π for central difference (Newmark 1959)."""
-    from groundstep.core._methods import resolve_method
+    from groundstep.core.methods import resolve_method
 
     assert resolve_method("linear").stability_limit == pytest.approx(math.sqrt(3) / math.pi, rel=1e-14)
     assert resolve_method((0.0, 0.5)).stability_limit == pytest.approx(1 / math.pi, rel=1e-14)
     assert math.isinf(resolve_method("average").stability_limit)
     assert resolve_method((0.25, 0.5)).name == "average"
+
+
+@pytest.mark.parametrize(("beta", "gamma"), [(0.25, 0.5), (1 / 6, 0.5), (0.3, 0.6)])
+def test_newmark_map_solves_the_1959_step_equations(beta, gamma):
+    """The linear map (built from the shared increment-form constants) solves Newmark's equations.
+
+    Reference: for each unit input (u0, v0, p0, p1) the three equations of one
+    step (Newmark 1959) in the unknowns (u1, v1, a1), solved by numpy.linalg.solve::
+
+        u1 - β h² a1 = u0 + h v0 + h² (1/2 - β) a0
+        v1 - γ h a1  = v0 + h (1 - γ) a0
+        k u1 + c v1 + a1 = p1,       a0 = p0 - c v0 - k u0
+    """
+    from groundstep.core import _coefficients
+
+    periods = np.geomspace(0.01, 100.0, 25)
+    omega, zeta, h = 2 * np.pi / periods, np.full(25, 0.05), np.full(25, 0.01)
+    coef = _coefficients.newmark(omega, zeta, h, beta, gamma)
+    rows = ((0, 2), (1, 3), (4, 6), (5, 7))
+    for j in range(periods.size):
+        c, k, step = 2 * zeta[j] * omega[j], omega[j] ** 2, h[j]
+        matrix = np.array([[1.0, 0.0, -beta * step**2], [0.0, 1.0, -gamma * step], [k, c, 1.0]])
+        for (row_u, row_v), (u0, v0, p0, p1) in zip(rows, np.eye(4)):
+            a0 = p0 - c * v0 - k * u0
+            rhs = [u0 + step * v0 + step**2 * (0.5 - beta) * a0, v0 + step * (1 - gamma) * a0, p1]
+            u1, v1, _ = np.linalg.solve(matrix, rhs)
+            # two routes to one linear solve: they differ by round-off of the largest term,
+            # |u0| or |v0| = 1 here, times the condition of the 3×3 system (< 1e3 at ωh <= 2π)
+            assert coef[row_u, j] == pytest.approx(u1, rel=1e-12, abs=1e-15)
+            assert coef[row_v, j] == pytest.approx(v1, rel=1e-12, abs=1e-13)
 
 
 # --- spectra ------------------------------------------------------------------

@@ -7,6 +7,7 @@ import math
 
 import numpy as np
 import pytest
+
 from groundstep.core import methods
 from groundstep.core.methods import (
     MAX_SUBSTEPS,

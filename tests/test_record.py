@@ -6,8 +6,9 @@ import warnings
 
 import numpy as np
 import pytest
-from groundstep.core import STANDARD_GRAVITY, Record, RecordTextWarning
 from numpy.testing import assert_allclose, assert_array_equal
+
+from groundstep.core import STANDARD_GRAVITY, Record, RecordTextWarning
 
 
 def test_standard_gravity_value():

@@ -6,6 +6,9 @@ import math
 
 import numpy as np
 import pytest
+from numpy.testing import assert_allclose
+from scipy import integrate, signal
+
 from groundstep.core import Record
 from groundstep.core.synthetic import (
     filtered_noise,
@@ -13,8 +16,6 @@ from groundstep.core.synthetic import (
     kanai_tajimi_psd,
     synthetic_record,
 )
-from numpy.testing import assert_allclose
-from scipy import integrate, signal
 
 
 def test_envelope_matches_its_closed_form():
@@ -39,7 +40,10 @@ def test_kanai_tajimi_variance_closed_form():
     fg, zg, s0 = 2.0, 0.4, 0.7
     omega_g = 2.0 * math.pi * fg
     closed = math.pi * s0 * omega_g * (1.0 + 4.0 * zg * zg) / (2.0 * zg)
-    psd = lambda w: kanai_tajimi_psd(w / (2.0 * math.pi), fg, zg, None, intensity=s0)
+
+    def psd(w):
+        return kanai_tajimi_psd(w / (2.0 * math.pi), fg, zg, None, intensity=s0)
+
     numeric = 2.0 * integrate.quad(psd, 0.0, np.inf, limit=400)[0]
     # quad's own error estimate is far below 1e-8 for this smooth rational function
     assert_allclose(numeric, closed, rtol=1e-8)

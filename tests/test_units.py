@@ -6,6 +6,8 @@ import doctest
 
 import numpy as np
 import pytest
+from numpy.testing import assert_allclose
+
 from groundstep.core import units
 from groundstep.core.units import (
     ACCELERATION_UNITS,
@@ -16,7 +18,6 @@ from groundstep.core.units import (
     output_units,
     to_si,
 )
-from numpy.testing import assert_allclose
 
 # Every factor below is a definition: g = 9.80665 m/s² (3rd CGPM, 1901),
 # 1 in = 0.0254 m and 1 ft = 0.3048 m (international yard and pound, 1959),
