@@ -12,7 +12,7 @@ import numpy as np
 import scipy.fft
 from numpy.typing import NDArray
 
-from . import _validate
+from .checks import check_positive
 from .record import Record
 
 __all__ = ["FourierAmplitude", "KONNO_OHMACHI", "fourier_amplitude"]
@@ -134,7 +134,7 @@ def fourier_amplitude(record: Record, smoothing: str | None = None, *, bandwidth
         raise TypeError(f"`record` must be a groundstep Record, got {type(record).__name__}")
     if smoothing is not None and not isinstance(smoothing, str):
         raise TypeError(f"`smoothing` must be None or {KONNO_OHMACHI!r}, got {type(smoothing).__name__}")
-    b = _validate.positive(bandwidth, "bandwidth")
+    b = check_positive(bandwidth, "bandwidth")
     if smoothing is not None and smoothing.strip().lower() != KONNO_OHMACHI:
         raise ValueError(f"`smoothing` must be None or {KONNO_OHMACHI!r}, got {smoothing!r}")
     n, dt = record.n, record.dt

@@ -14,11 +14,11 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
-from . import _validate
-from ._units import STANDARD_GRAVITY
+from .checks import check_positive
 from .fourier import fourier_amplitude
 from .linear import SubstepWarning, elastic_spectrum
 from .record import Record
+from .units import STANDARD_GRAVITY
 
 __all__ = [
     "DEFAULT_BRACKET_THRESHOLD",
@@ -387,7 +387,7 @@ def ground_motion_measures(
     5.09
     """
     _check(record)
-    threshold = _validate.positive(bracket_threshold, "bracket_threshold")
+    threshold = check_positive(bracket_threshold, "bracket_threshold")
     a, dt = record.accel, record.dt
     velocity, displacement = record.ground_velocity(), record.ground_displacement()
     peaks = {}
