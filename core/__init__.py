@@ -7,6 +7,7 @@ spreadsheets and the command line to this API. SI units throughout
 
 from importlib.metadata import PackageNotFoundError, version
 
+from ._notices import collect_warnings
 from ._warm import warm_up
 from .inelastic import (
     ConvergenceError,
@@ -14,7 +15,7 @@ from .inelastic import (
     ductility_spectrum,
     inelastic_response,
 )
-from .inelastic_results import DuctilitySpectrum, InelasticResponse
+from .inelastic_results import DuctilitySpectrum, DuctilityTargetWarning, InelasticResponse
 from .linear import (
     DEFAULT_STEP_RATIO,
     SubstepWarning,
@@ -47,24 +48,26 @@ except PackageNotFoundError:  # running from a source tree that was not installe
 
 __all__ = [
     "ACCELERATION_UNITS",
-    "DEFAULT_STEP_RATIO",
-    "LENGTH_UNITS",
-    "METHODS",
-    "STANDARD_GRAVITY",
     "ConvergenceError",
     "ConvergenceWarning",
+    "DEFAULT_STEP_RATIO",
     "DuctilitySpectrum",
+    "DuctilityTargetWarning",
     "ElasticSpectrum",
     "InelasticResponse",
+    "LENGTH_UNITS",
     "LinearResponse",
+    "METHODS",
     "Method",
     "OutputUnits",
     "ProcessingStep",
     "Record",
     "RecordTextWarning",
+    "STANDARD_GRAVITY",
     "SubstepWarning",
     "__version__",
     "arias_intensity",
+    "collect_warnings",
     "ductility_spectrum",
     "elastic_spectrum",
     "filtered_noise",

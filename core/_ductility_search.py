@@ -10,13 +10,13 @@ lanes comes from one compiled kernel call per pass.
 from __future__ import annotations
 
 import time
-import warnings
 
 import numpy as np
 
 from . import _kernels_inelastic as _kernels
+from . import _notices
 from ._kernels import chunk_starts
-from .inelastic_results import ConvergenceError
+from .inelastic_results import ConvergenceError, DuctilityTargetWarning
 
 #: Finest split of a step that fails to converge (a power of two).
 MAX_PIECES = 256
@@ -114,10 +114,12 @@ def search(solver, periods, elastic, substeps, targets):
         start, top = top, top * 4.0
     reduction, achieved = _refine(solver, periods, elastic, substeps, targets, x_lo, f_lo, x_hi, f_hi)
     if np.isnan(reduction).any():
-        warnings.warn(
-            f"some target ductilities were not reached with reduction factors up to {_LARGEST_REDUCTION:g}; "
-            "NaN returned there",
-            RuntimeWarning, stacklevel=4,
+        _notices.warn(
+            DuctilityTargetWarning(
+                f"some target ductilities were not reached with reduction factors up to {_LARGEST_REDUCTION:g}; "
+                "NaN returned there"
+            ),
+            stacklevel=4,
         )
     return reduction, achieved
 
@@ -153,10 +155,12 @@ def _refine(solver, periods, elastic, substeps, targets, x_lo, f_lo, x_hi, f_hi)
         active[lanes[done]] = False
     if active.any():
         worst = float(np.max(np.abs(mu_best[active] - goal[active]) / goal[active]))
-        warnings.warn(
-            f"constant-ductility search stopped after {_SEARCH_PASSES} passes for {int(active.sum())} "
-            f"entries; largest relative ductility miss {worst:.2g} (see `achieved_ductility`)",
-            RuntimeWarning, stacklevel=5,
+        _notices.warn(
+            DuctilityTargetWarning(
+                f"constant-ductility search stopped after {_SEARCH_PASSES} passes for {int(active.sum())} "
+                f"entries; largest relative ductility miss {worst:.2g} (see `achieved_ductility`)"
+            ),
+            stacklevel=5,
         )
     return np.exp(x_best).reshape(x_lo.shape), mu_best.reshape(x_lo.shape)
 

@@ -3,13 +3,12 @@
 from __future__ import annotations
 
 import math
-import warnings
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from . import _kernels_inelastic as _kernels
-from . import _validate
+from . import _notices, _validate
 from ._ductility_search import MAX_PIECES as _MAX_PIECES
 from ._ductility_search import Solver as _Solver
 from ._ductility_search import raise_if_failed as _raise_if_failed
@@ -37,7 +36,6 @@ from .inelastic_results import (
     InelasticResponse,
 )
 from .linear import (  # one source
-    SubstepWarning,
     _check_ratio,
     _check_record,
     _warn_grid_substeps,
@@ -50,10 +48,10 @@ from .record import Record
 from .units import STANDARD_GRAVITY
 
 __all__ = [
-    "DEFAULT_MAX_ITERATIONS",
-    "DEFAULT_TOLERANCE",
     "ConvergenceError",
     "ConvergenceWarning",
+    "DEFAULT_MAX_ITERATIONS",
+    "DEFAULT_TOLERANCE",
     "ductility_spectrum",
     "inelastic_response",
 ]
@@ -178,8 +176,7 @@ def inelastic_response(
     coefficient, reduction = check_strength(yield_coefficient, reduction_factor)
 
     substeps = int(substep_counts(record.dt, np.array([period]), resolved, ratio)[0])
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", SubstepWarning)  # reported once, below
+    with _notices.collect_warnings():  # the SubstepWarning is reported once, below
         linear = linear_response(record, period, damping, resolved, max_step_ratio=ratio)
     elastic_force = linear.pseudo_acceleration
     if coefficient is not None:
@@ -208,10 +205,12 @@ def inelastic_response(
     _raise_if_failed(info, period, fy, accepted)
     retried = int(info[_kernels.INFO_RETRIED])
     if retried:
-        warnings.warn(
-            f"period {period:g} s: {retried} steps did not converge in {iterations_allowed} Newton "
-            f"iterations and were split into up to {int(info[_kernels.INFO_PIECES])} pieces",
-            ConvergenceWarning, stacklevel=2,
+        _notices.warn(
+            ConvergenceWarning(
+                f"period {period:g} s: {retried} steps did not converge in {iterations_allowed} Newton "
+                f"iterations and were split into up to {int(info[_kernels.INFO_PIECES])} pieces"
+            ),
+            stacklevel=2,
         )
 
     kinetic = 0.5 * v * v
@@ -284,7 +283,7 @@ def ductility_spectrum(
     -----
     SubstepWarning
         When any period needed sub-steps for the Δt/T limit.
-    RuntimeWarning
+    DuctilityTargetWarning
         When a target cannot be reached with R <= 1e4 (NaN is returned) or
         the search stopped before its tolerance.
 
@@ -383,8 +382,7 @@ def _ductility_spectrum(
 
 def _elastic_forces(record, periods, damping, method, ratio) -> NDArray[np.float64]:
     """Peak elastic force per unit mass ω²·SD (PGA at T = 0) from the linear engine."""
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", SubstepWarning)
+    with _notices.collect_warnings():  # ductility_spectrum reports the sub-steps once
         spectrum = elastic_spectrum(record, periods, [damping], method, max_step_ratio=ratio)
     return spectrum.psa[0]
 

@@ -7,7 +7,13 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
-__all__ = ["ConvergenceError", "ConvergenceWarning", "DuctilitySpectrum", "InelasticResponse"]
+__all__ = [
+    "ConvergenceError",
+    "ConvergenceWarning",
+    "DuctilitySpectrum",
+    "DuctilityTargetWarning",
+    "InelasticResponse",
+]
 
 
 class ConvergenceError(RuntimeError):
@@ -25,6 +31,13 @@ class ConvergenceError(RuntimeError):
 
 class ConvergenceWarning(UserWarning):
     """Steps were split into smaller pieces so that Newton's method converged."""
+
+
+class DuctilityTargetWarning(RuntimeWarning):
+    """A target ductility was not reached: NaN returned, or the search stopped short of its tolerance.
+
+    `ductility_spectrum` issues it; ``achieved_ductility`` shows what was reached.
+    """
 
 
 @dataclass(frozen=True, slots=True, eq=False)

@@ -3,12 +3,11 @@
 from __future__ import annotations
 
 import math
-import warnings
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from . import _coefficients, _kernels, _validate
+from . import _coefficients, _kernels, _notices, _validate
 from .checks import (
     check_damping,
     check_dampings,
@@ -22,7 +21,13 @@ from .methods import Method, substep_counts
 from .record import Record
 from .results import ElasticSpectrum, LinearResponse
 
-__all__ = ["DEFAULT_STEP_RATIO", "SubstepWarning", "elastic_spectrum", "linear_response", "period_grid"]
+__all__ = [
+    "DEFAULT_STEP_RATIO",
+    "SubstepWarning",
+    "elastic_spectrum",
+    "linear_response",
+    "period_grid",
+]
 
 
 class SubstepWarning(UserWarning):
@@ -306,10 +311,11 @@ def _warn_substeps(period: float, dt: float, substeps: int, method: Method, rati
     `stacklevel` counts from the caller of this helper's caller: the user's line by default.
     """
     if substeps > 1:
-        warnings.warn(
-            f"period {period:g} s with record step {dt:g} s: each step split into "
-            f"{substeps} sub-steps (Δt/T <= {_limit_text(method, ratio)})",
-            SubstepWarning,
+        _notices.warn(
+            SubstepWarning(
+                f"period {period:g} s with record step {dt:g} s: each step split into "
+                f"{substeps} sub-steps (Δt/T <= {_limit_text(method, ratio)})"
+            ),
             stacklevel=stacklevel,
         )
 
@@ -319,10 +325,11 @@ def _warn_grid_substeps(dt: float, substeps: NDArray[np.int64], what: str, metho
     """One SubstepWarning for a grid of `what` ("oscillators", "periods") if any was split."""
     if substeps.max() > 1:
         split = int(np.count_nonzero(substeps > 1))
-        warnings.warn(
-            f"record step {dt:g} s: {split} of {substeps.size} {what} sub-stepped, "
-            f"up to {substeps.max()} sub-steps (Δt/T <= {_limit_text(method, ratio)})",
-            SubstepWarning,
+        _notices.warn(
+            SubstepWarning(
+                f"record step {dt:g} s: {split} of {substeps.size} {what} sub-stepped, "
+                f"up to {substeps.max()} sub-steps (Δt/T <= {_limit_text(method, ratio)})"
+            ),
             stacklevel=stacklevel,
         )
 

@@ -21,7 +21,13 @@ from numpy.typing import ArrayLike, NDArray
 from . import _validate
 from ._coefficients import stability_limit
 
-__all__ = ["MAX_SUBSTEPS", "METHODS", "Method", "resolve_method", "substep_counts"]
+__all__ = [
+    "MAX_SUBSTEPS",
+    "METHODS",
+    "Method",
+    "resolve_method",
+    "substep_counts",
+]
 
 
 @dataclass(frozen=True, slots=True, eq=False)

@@ -6,14 +6,13 @@ import hashlib
 import math
 import os
 import re
-import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
 from numpy.typing import NDArray
 
-from . import _validate
+from . import _notices, _validate
 from .units import ACCELERATION_UNITS, normalise_unit
 
 __all__ = ["ProcessingStep", "Record", "RecordTextWarning"]
@@ -280,10 +279,11 @@ class Record:
                 )
             samples = np.array([value for row in rows for value in row], dtype=np.float64)
         if header:
-            warnings.warn(
-                f"{label}: skipped {len(header)} non-numeric header line(s): {header[0]!r}"
-                + (" ..." if len(header) > 1 else ""),
-                RecordTextWarning,
+            _notices.warn(
+                RecordTextWarning(
+                    f"{label}: skipped {len(header)} non-numeric header line(s): {header[0]!r}"
+                    + (" ..." if len(header) > 1 else "")
+                ),
                 stacklevel=2,
             )
         return cls(samples, dt, unit, name=label if name is None else name, header=tuple(header))

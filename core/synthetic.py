@@ -21,7 +21,12 @@ from . import _validate
 from .record import Record
 from .units import ACCELERATION_UNITS, normalise_unit
 
-__all__ = ["filtered_noise", "jennings_envelope", "kanai_tajimi_psd", "synthetic_record"]
+__all__ = [
+    "filtered_noise",
+    "jennings_envelope",
+    "kanai_tajimi_psd",
+    "synthetic_record",
+]
 
 
 def kanai_tajimi_psd(

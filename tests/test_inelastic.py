@@ -7,7 +7,6 @@ smooth sine pulses, constant steps).
 from __future__ import annotations
 
 import math
-import warnings
 
 import numpy as np
 import pytest
@@ -20,6 +19,7 @@ from groundstep.core import (
     ConvergenceWarning,
     Record,
     SubstepWarning,
+    collect_warnings,
     ductility_spectrum,
     elastic_spectrum,
     inelastic_response,
@@ -267,15 +267,13 @@ def test_step_that_will_not_converge_is_split_then_reported(record):
 @pytest.fixture(scope="module")
 def spectrum(record):
     periods = np.array([0.0, 0.01, 0.1, 0.3, 0.6, 1.0, 2.0])
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", SubstepWarning)
+    with collect_warnings():
         return ductility_spectrum(record, periods, [1.0, 2.0, 4.0, 6.0])
 
 
 def test_ductility_one_reproduces_elastic_spectrum(record, spectrum):
     """μ = 1 is the elastic spectrum (definition: largest fy with μ = 1 is the elastic force)."""
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", SubstepWarning)
+    with collect_warnings():
         elastic = elastic_spectrum(record, spectrum.periods, [0.05])
     assert_allclose(spectrum.yield_pseudo_acceleration[0], elastic.psa[0], rtol=1e-15)
     assert_allclose(spectrum.reduction_factor[0], 1.0)
@@ -289,8 +287,7 @@ def test_spectrum_strengths_give_target_ductility(record, spectrum):
         if period == 0.0:  # T = 0 is a limit, not an oscillator
             continue
         for i, target in enumerate(spectrum.ductilities):
-            with warnings.catch_warnings():
-                warnings.simplefilter("ignore", SubstepWarning)  # T = 0.01 s is sub-stepped
+            with collect_warnings():  # T = 0.01 s is sub-stepped
                 result = inelastic_response(record, period, yield_coefficient=spectrum.yield_coefficient[i, j])
             # search tolerance 1e-6 on μ; the two kernels differ by round-off
             assert result.ductility == pytest.approx(target, rel=1e-5), (period, target)
@@ -306,8 +303,7 @@ def test_ductility_one_is_exact_at_sub_stepped_periods(record, spectrum):
     moving = spectrum.periods > 0.0
     assert spectrum.substeps[1] > 1  # T = 0.01 s with the fixture's record step
     assert_allclose(spectrum.achieved_ductility[0, moving], 1.0, rtol=1e-12)
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", SubstepWarning)
+    with collect_warnings():
         result = inelastic_response(record, 0.01, reduction_factor=1.0)
     assert result.ductility == pytest.approx(1.0, rel=1e-12)
     assert result.yield_excursions == 0

@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import math
-import warnings
 
 import numpy as np
 import pytest
@@ -13,6 +12,7 @@ from scipy import signal
 from groundstep.core import (
     Record,
     SubstepWarning,
+    collect_warnings,
     elastic_spectrum,
     linear_response,
     period_grid,
@@ -27,8 +27,7 @@ def _random_record(seed: int, n: int = 1500, dt: float = 0.01) -> Record:
 
 
 def _quiet(function, *args, **kwargs):
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", SubstepWarning)
+    with collect_warnings():
         return function(*args, **kwargs)
 
 
