@@ -1,4 +1,4 @@
-"""Tests of Arias intensity and significant duration against closed forms."""
+"""Tests of the ground-motion measures against closed forms and independent computations."""
 
 from __future__ import annotations
 
@@ -7,9 +7,17 @@ import math
 import numpy as np
 import pytest
 from numpy.testing import assert_allclose
+from scipy.integrate import simpson
 
-from groundstep.core import Record
-from groundstep.core.measures import arias_intensity, normalised_arias, significant_duration
+from groundstep.core import Record, elastic_spectrum, synthetic_record
+from groundstep.core.measures import (
+    PREDOMINANT_PERIODS,
+    MeasureWarning,
+    arias_intensity,
+    ground_motion_measures,
+    normalised_arias,
+    significant_duration,
+)
 
 G = 9.80665  # m/s², standard gravity (3rd CGPM 1901)
 
@@ -50,15 +58,6 @@ def test_significant_duration_of_steady_shaking():
 
 
 # ---------------------------------------------------------------- ground_motion_measures
-
-from scipy.integrate import simpson  # noqa: E402
-
-from groundstep.core import elastic_spectrum, synthetic_record  # noqa: E402
-from groundstep.core.measures import (  # noqa: E402
-    MeasureWarning,
-    PREDOMINANT_PERIODS,
-    ground_motion_measures,
-)
 
 ISSUE_KEYS = {
     "pga", "pgv", "pgd", "arias_intensity", "d5_75", "d5_95", "cav", "bracketed_duration", "mean_period",
