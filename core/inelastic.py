@@ -221,17 +221,23 @@ def inelastic_response(
     balance_error = float(imbalance / scale) if scale > 0.0 else 0.0
     peak = float(info[_kernels.INFO_PEAK])  # read at every sub-step, as the elastic force is
     yield_displacement = fy / k
-    time_axis = record.time
-    histories = (e_input, kinetic, e_damping, strain, hysteretic) if energy_histories else (None,) * 5
     return InelasticResponse(
-        period, damping, alpha, resolved.name, resolved.beta, resolved.gamma, record.dt, substeps,
-        fy, fy / STANDARD_GRAVITY, elastic_force / fy, elastic_force,
-        time_axis, u, v, -(c * v + fs), fs,
-        peak, float(info[_kernels.INFO_PEAK_TIME]), yield_displacement, peak / yield_displacement,
-        float(u[-1] - fs[-1] / k), int(info[_kernels.INFO_EXCURSIONS]),
-        float(e_input[-1]), float(kinetic[-1]), float(e_damping[-1]), float(strain[-1]),
-        float(hysteretic[-1]), *histories,
-        balance_error, int(info[_kernels.INFO_ITERATIONS]), True, retried, accepted,
+        period=period, damping=damping, hardening=alpha, method=resolved, dt=record.dt, substeps=substeps,
+        yield_pseudo_acceleration=fy, yield_coefficient=fy / STANDARD_GRAVITY,
+        reduction_factor=elastic_force / fy, elastic_pseudo_acceleration=elastic_force,
+        time=record.time, displacement=u, velocity=v, total_acceleration=-(c * v + fs), restoring_force=fs,
+        peak_displacement=peak, time_of_peak_displacement=float(info[_kernels.INFO_PEAK_TIME]),
+        yield_displacement=yield_displacement, ductility=peak / yield_displacement,
+        residual_displacement=float(u[-1] - fs[-1] / k), yield_excursions=int(info[_kernels.INFO_EXCURSIONS]),
+        input_energy=float(e_input[-1]), kinetic_energy=float(kinetic[-1]), damping_energy=float(e_damping[-1]),
+        strain_energy=float(strain[-1]), hysteretic_energy=float(hysteretic[-1]),
+        input_energy_history=e_input if energy_histories else None,
+        kinetic_energy_history=kinetic if energy_histories else None,
+        damping_energy_history=e_damping if energy_histories else None,
+        strain_energy_history=strain if energy_histories else None,
+        hysteretic_energy_history=hysteretic if energy_histories else None,
+        energy_balance_error=balance_error, iterations=int(info[_kernels.INFO_ITERATIONS]), converged=True,
+        retried_steps=retried, tolerance=accepted,
     )  # fmt: skip
 
 
@@ -374,9 +380,10 @@ def _ductility_spectrum(
     with np.errstate(divide="ignore", invalid="ignore"):
         displacement = np.where(moving, achieved * fy / (omega * omega), 0.0)
     return DuctilitySpectrum(
-        period_values, targets, damping, alpha, fy / STANDARD_GRAVITY, reduction, fy, displacement,
-        achieved, elastic, substeps, resolved.name, resolved.beta, resolved.gamma, record.dt,
-        math.nan if ratio is None else ratio,
+        periods=period_values, ductilities=targets, damping=damping, hardening=alpha,
+        yield_coefficient=fy / STANDARD_GRAVITY, reduction_factor=reduction, yield_pseudo_acceleration=fy,
+        peak_displacement=displacement, achieved_ductility=achieved, elastic_pseudo_acceleration=elastic,
+        substeps=substeps, method=resolved, dt=record.dt, max_step_ratio=math.nan if ratio is None else ratio,
     )  # fmt: skip
 
 

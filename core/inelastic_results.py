@@ -1,4 +1,7 @@
-"""Results of the yielding engine: frozen value objects (no numerics) and its error and warning."""
+"""Results of the yielding engine: frozen value objects (no numerics) and its error and warnings.
+
+Fields are keyword-only and the repr is one line, as in ``results.py``.
+"""
 
 from __future__ import annotations
 
@@ -6,6 +9,9 @@ from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import NDArray
+
+from .methods import Method
+from .results import _span
 
 __all__ = [
     "ConvergenceError",
@@ -40,7 +46,7 @@ class DuctilityTargetWarning(RuntimeWarning):
     """
 
 
-@dataclass(frozen=True, slots=True, eq=False)
+@dataclass(frozen=True, slots=True, eq=False, kw_only=True)
 class InelasticResponse:
     """Response of one yielding oscillator, returned by `inelastic_response`.
 
@@ -52,24 +58,25 @@ class InelasticResponse:
     ----------
     period, damping, hardening : float
         T [s], ζ [-] and α [-] (post-yield stiffness α·k).
-    method : str
-        ``"average"``, ``"linear"`` or ``"newmark"``.
-    beta, gamma : float
-        Newmark parameters.
+    method : Method
+        ``"average"``, ``"linear"`` or ``"newmark"`` (``method.describe()``
+        for reports); `beta` and `gamma` are its parameters (read-only
+        properties).
     dt : float
         Record time step [s].
     substeps : int
         Sub-steps per record step from the Δt/T limit (1 when none).
-    yield_force : float
-        fy/m [m/s²].
+    yield_pseudo_acceleration : float
+        Yield strength per unit mass fy/m [m/s²] (the name `DuctilitySpectrum`
+        uses too).
     yield_coefficient : float
         fy/(m·g) [-], g = 9.80665 m/s².
     reduction_factor : float
         R = (peak elastic force of the same oscillator) / fy [-]; below 1 the
         oscillator stays elastic.
-    elastic_force : float
+    elastic_pseudo_acceleration : float
         Peak elastic force per unit mass ω²·SD [m/s²] of the same oscillator
-        kept linear (same method and sub-steps).
+        kept linear (same method and sub-steps): its PSA.
     time, displacement, velocity, total_acceleration, restoring_force : ndarray (n,)
         t [s], relative u [m], relative u̇ [m/s], ü + ü_g = -(c·u̇ + fs)
         [m/s²] and fs [m/s²].
@@ -112,15 +119,13 @@ class InelasticResponse:
     period: float
     damping: float
     hardening: float
-    method: str
-    beta: float
-    gamma: float
+    method: Method
     dt: float
     substeps: int
-    yield_force: float
+    yield_pseudo_acceleration: float
     yield_coefficient: float
     reduction_factor: float
-    elastic_force: float
+    elastic_pseudo_acceleration: float
     time: NDArray[np.float64]
     displacement: NDArray[np.float64]
     velocity: NDArray[np.float64]
@@ -148,8 +153,27 @@ class InelasticResponse:
     retried_steps: int
     tolerance: float
 
+    @property
+    def beta(self) -> float:
+        """Newmark β of `method`."""
+        return self.method.beta
 
-@dataclass(frozen=True, slots=True, eq=False)
+    @property
+    def gamma(self) -> float:
+        """Newmark γ of `method`."""
+        return self.method.gamma
+
+    def __repr__(self) -> str:
+        return (
+            f"InelasticResponse(period={self.period:g} s, damping={self.damping:g}, "
+            f"hardening={self.hardening:g}, method={self.method.name!r}, n={self.time.size}, "
+            f"substeps={self.substeps}, R={self.reduction_factor:.4g}, "
+            f"yield_coefficient={self.yield_coefficient:.4g}, ductility={self.ductility:.4g}, "
+            f"peak_displacement={self.peak_displacement:.4g} m, yield_excursions={self.yield_excursions})"
+        )
+
+
+@dataclass(frozen=True, slots=True, eq=False, kw_only=True)
 class DuctilitySpectrum:
     """Constant-ductility spectra, returned by `ductility_spectrum`.
 
@@ -175,15 +199,17 @@ class DuctilitySpectrum:
     achieved_ductility : ndarray
         Ductility of the oscillator at the returned strength [-] (the target
         to within the search tolerance); NaN at T = 0. For μ = 1 it can
-        exceed 1 at sub-stepped periods (T < Δt/0.1 by default): the elastic
-        peak is taken at sample times and the oscillator may yield between
-        them.
+        differ from 1 by round-off only: both the elastic peak and the
+        yielding oscillator's peak are read at every sub-step.
     elastic_pseudo_acceleration : ndarray (n_periods,)
         Peak elastic force per unit mass ω²·SD [m/s²] (PGA at T = 0).
     substeps : ndarray of int (n_periods,)
         Sub-steps per record step used for each period.
-    method, beta, gamma, dt, max_step_ratio
-        Settings the spectra were computed with.
+    method : Method
+        The integration method; `beta` and `gamma` are its parameters
+        (read-only properties).
+    dt, max_step_ratio : float
+        Record step [s] and the Δt/T limit used (NaN when turned off).
     """
 
     periods: NDArray[np.float64]
@@ -197,8 +223,27 @@ class DuctilitySpectrum:
     achieved_ductility: NDArray[np.float64]
     elastic_pseudo_acceleration: NDArray[np.float64]
     substeps: NDArray[np.int64]
-    method: str
-    beta: float
-    gamma: float
+    method: Method
     dt: float
     max_step_ratio: float
+
+    @property
+    def beta(self) -> float:
+        """Newmark β of `method`."""
+        return self.method.beta
+
+    @property
+    def gamma(self) -> float:
+        """Newmark γ of `method`."""
+        return self.method.gamma
+
+    def __repr__(self) -> str:
+        n_mu, n_p = self.reduction_factor.shape
+        finite = self.reduction_factor[np.isfinite(self.reduction_factor)]
+        return (
+            f"DuctilitySpectrum({n_mu} ductilities × {n_p} periods, T {_span(self.periods)} s, "
+            f"μ {_span(self.ductilities)}, damping={self.damping:g}, hardening={self.hardening:g}, "
+            f"method={self.method.name!r}, R {_span(finite)}"
+            + (f", {self.reduction_factor.size - finite.size} not reached" if finite.size < self.reduction_factor.size else "")
+            + ")"
+        )

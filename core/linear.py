@@ -130,11 +130,14 @@ def linear_response(
         zeros = np.zeros(record.n)
         total = record.accel.copy()
         index = int(np.argmax(np.abs(total)))
+        peak = float(abs(total[index]))
         return LinearResponse(
-            period, damping, resolved.name, resolved.beta, resolved.gamma, record.dt, 1,
-            time, zeros, zeros.copy(), total,
-            0.0, 0.0, float(abs(total[index])), 0.0, 0.0, float(time[index]),
-            0.0, float(abs(total[index])),
+            period=period, damping=damping, method=resolved, dt=record.dt, substeps=1,
+            time=time, displacement=zeros, velocity=zeros.copy(), total_acceleration=total,
+            peak_displacement=0.0, peak_velocity=0.0, peak_total_acceleration=peak,
+            time_of_peak_displacement=0.0, time_of_peak_velocity=0.0,
+            time_of_peak_total_acceleration=float(time[index]),
+            pseudo_velocity=0.0, pseudo_acceleration=peak,
         )  # fmt: skip
 
     coef, substeps = _step_coefficients(record.dt, np.array([period]), np.array([damping]), resolved, ratio)
@@ -148,10 +151,11 @@ def linear_response(
     when = [float(steps * record.dt) for steps in found[3:]]
     omega = 2.0 * math.pi / period
     return LinearResponse(
-        period, damping, resolved.name, resolved.beta, resolved.gamma, record.dt, int(substeps[0]),
-        time, displacement, velocity, total,
-        sd, sv, sa, when[0], when[1], when[2],
-        omega * sd, omega * omega * sd,
+        period=period, damping=damping, method=resolved, dt=record.dt, substeps=int(substeps[0]),
+        time=time, displacement=displacement, velocity=velocity, total_acceleration=total,
+        peak_displacement=sd, peak_velocity=sv, peak_total_acceleration=sa,
+        time_of_peak_displacement=when[0], time_of_peak_velocity=when[1], time_of_peak_total_acceleration=when[2],
+        pseudo_velocity=omega * sd, pseudo_acceleration=omega * omega * sd,
     )  # fmt: skip
 
 
@@ -243,9 +247,9 @@ def elastic_spectrum(
     psv = (omega * peaks[0]).reshape(shape)
     psa = np.where(moving, omega * omega * peaks[0], peaks[2]).reshape(shape)
     return ElasticSpectrum(
-        period_values, damping_values, sd, sv, sa, psv, psa, substeps.reshape(shape),
-        resolved.name, resolved.beta, resolved.gamma, record.dt,
-        math.nan if ratio is None else ratio,
+        periods=period_values, dampings=damping_values, sd=sd, sv=sv, sa=sa, psv=psv, psa=psa,
+        substeps=substeps.reshape(shape), method=resolved, dt=record.dt,
+        max_step_ratio=math.nan if ratio is None else ratio,
     )  # fmt: skip
 
 

@@ -1,4 +1,8 @@
-"""Frozen result objects of the linear engine. They hold values, no numerics."""
+"""Frozen result objects of the linear engine. They hold values, no numerics.
+
+Fields are keyword-only (results are built from named fields) and the repr
+is one line: shapes, settings and the key peaks, never the arrays.
+"""
 
 from __future__ import annotations
 
@@ -7,10 +11,12 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
+from .methods import Method
+
 __all__ = ["ElasticSpectrum", "LinearResponse"]
 
 
-@dataclass(frozen=True, slots=True, eq=False)
+@dataclass(frozen=True, slots=True, eq=False, kw_only=True)
 class LinearResponse:
     """Response of one linear oscillator, returned by `linear_response`.
 
@@ -22,10 +28,12 @@ class LinearResponse:
     ----------
     period, damping : float
         T [s] and ζ [-].
-    method : str
-        ``"average"``, ``"linear"``, ``"newmark"`` or ``"exact"``.
+    method : Method
+        The integration method (``method.name``, ``method.describe()``; it
+        equals its name, ``method == "exact"``).
     beta, gamma : float
-        Newmark parameters (NaN for ``"exact"``).
+        Newmark parameters of `method` (NaN for ``"exact"``); read-only
+        properties.
     dt : float
         Record time step [s].
     substeps : int
@@ -41,9 +49,7 @@ class LinearResponse:
 
     period: float
     damping: float
-    method: str
-    beta: float
-    gamma: float
+    method: Method
     dt: float
     substeps: int
     time: NDArray[np.float64]
@@ -59,8 +65,26 @@ class LinearResponse:
     pseudo_velocity: float
     pseudo_acceleration: float
 
+    @property
+    def beta(self) -> float:
+        """Newmark β of `method` (NaN for the exact method)."""
+        return self.method.beta
 
-@dataclass(frozen=True, slots=True, eq=False)
+    @property
+    def gamma(self) -> float:
+        """Newmark γ of `method` (NaN for the exact method)."""
+        return self.method.gamma
+
+    def __repr__(self) -> str:
+        return (
+            f"LinearResponse(period={self.period:g} s, damping={self.damping:g}, method={self.method.name!r}, "
+            f"n={self.time.size}, substeps={self.substeps}, SD={self.peak_displacement:.4g} m, "
+            f"SV={self.peak_velocity:.4g} m/s, SA={self.peak_total_acceleration:.4g} m/s², "
+            f"PSA={self.pseudo_acceleration:.4g} m/s²)"
+        )
+
+
+@dataclass(frozen=True, slots=True, eq=False, kw_only=True)
 class ElasticSpectrum:
     """Elastic response spectra, returned by `elastic_spectrum`.
 
@@ -79,8 +103,11 @@ class ElasticSpectrum:
         ω·SD [m/s] and ω²·SD [m/s²] (0 and SA at T = 0).
     substeps : ndarray of int
         Sub-steps per record step used for each oscillator.
-    method, beta, gamma, dt, max_step_ratio
-        Settings the spectra were computed with.
+    method : Method
+        The integration method; `beta` and `gamma` are its parameters
+        (read-only properties).
+    dt, max_step_ratio : float
+        Record step [s] and the Δt/T limit used (NaN when turned off).
     """
 
     periods: NDArray[np.float64]
@@ -91,8 +118,37 @@ class ElasticSpectrum:
     psv: NDArray[np.float64]
     psa: NDArray[np.float64]
     substeps: NDArray[np.int64]
-    method: str
-    beta: float
-    gamma: float
+    method: Method
     dt: float
     max_step_ratio: float
+
+    @property
+    def beta(self) -> float:
+        """Newmark β of `method` (NaN for the exact method)."""
+        return self.method.beta
+
+    @property
+    def gamma(self) -> float:
+        """Newmark γ of `method` (NaN for the exact method)."""
+        return self.method.gamma
+
+    def __repr__(self) -> str:
+        n_d, n_p = self.psa.shape
+        text = (
+            f"ElasticSpectrum({n_d} dampings × {n_p} periods, T {_span(self.periods)} s, "
+            f"ζ {_span(self.dampings)}, method={self.method.name!r}, dt={self.dt:g} s"
+        )
+        if self.psa.size:
+            i, j = np.unravel_index(int(np.argmax(self.psa)), self.psa.shape)
+            text += (
+                f", max PSA={self.psa[i, j]:.4g} m/s² at T={self.periods[j]:g} s, ζ={self.dampings[i]:g}"
+            )
+        return text + ")"
+
+
+def _span(values: NDArray[np.float64]) -> str:
+    """'0.02-10' for a range of values, '0.05' for one value ('' for none)."""
+    if values.size == 0:
+        return ""
+    low, high = float(np.min(values)), float(np.max(values))
+    return f"{low:g}" if low == high else f"{low:g}-{high:g}"

@@ -212,7 +212,7 @@ def test_energy_histories_and_identities(record):
     # dissipation never decreases for elastoplastic springs (fs·du_p >= 0)
     assert np.all(np.diff(result.hysteretic_energy_history) >= -1e-12 * result.input_energy)
     plastic = result.displacement - result.restoring_force / k
-    dissipated = result.yield_force * np.sum(np.abs(np.diff(plastic)))
+    dissipated = result.yield_pseudo_acceleration * np.sum(np.abs(np.diff(plastic)))
     assert result.hysteretic_energy == pytest.approx(dissipated, rel=1e-6)
     assert result.residual_displacement == pytest.approx(plastic[-1], rel=1e-12)
 
@@ -225,8 +225,8 @@ def test_restoring_force_stays_within_bilinear_envelope(record, hardening, reduc
     k = (2 * math.pi / 0.3) ** 2
     offset = np.abs(result.restoring_force - hardening * k * result.displacement)
     assert result.ductility > 1.5  # precondition: the envelope is reached
-    assert offset.max() <= (1 - hardening) * result.yield_force * (1 + 1e-12)
-    assert offset.max() >= (1 - hardening) * result.yield_force * (1 - 1e-12)
+    assert offset.max() <= (1 - hardening) * result.yield_pseudo_acceleration * (1 + 1e-12)
+    assert offset.max() >= (1 - hardening) * result.yield_pseudo_acceleration * (1 - 1e-12)
     assert result.yield_excursions >= 2
 
 
@@ -243,7 +243,7 @@ def test_reduction_factor_one_gives_ductility_one(record):
     """fy = peak elastic force: the oscillator just reaches yield (definition of R)."""
     result = inelastic_response(record, 0.7, reduction_factor=1.0)
     elastic = linear_response(record, 0.7, 0.05)
-    assert result.yield_force == pytest.approx(elastic.pseudo_acceleration, rel=1e-15)
+    assert result.yield_pseudo_acceleration == pytest.approx(elastic.pseudo_acceleration, rel=1e-15)
     assert result.ductility == pytest.approx(1.0, rel=1e-9)
 
 
@@ -392,3 +392,24 @@ def test_bad_period_damping_record_and_ductilities(record):
         inelastic_response(silent, 0.5, reduction_factor=2.0)
     with pytest.raises(ValueError, match="no elastic force at `periods` index 0"):
         ductility_spectrum(silent, [0.5], [2.0])
+
+
+# --- result objects -------------------------------------------------------------
+
+
+def test_results_have_short_reprs_one_strength_name_and_the_method(record, spectrum):
+    """One-line reprs; the yield strength per unit mass has one name on both results; the Method is on them."""
+    single = inelastic_response(record, 0.5, reduction_factor=4.0, method="linear")
+    for result in (single, spectrum):
+        text = repr(result)
+        assert "\n" not in text and len(text) < 300 and "array" not in text
+    assert f"R={single.reduction_factor:.4g}" in repr(single) and f"ductility={single.ductility:.4g}" in repr(single)
+    assert repr(spectrum).startswith("DuctilitySpectrum(4 ductilities × 7 periods, T 0-2 s, μ 1-6")
+    # fy/m = R⁻¹·F_el and Cy = fy/(m·g) (definitions of R and Cy)
+    assert single.yield_pseudo_acceleration == pytest.approx(single.elastic_pseudo_acceleration / 4.0, rel=1e-15)
+    assert single.yield_coefficient == pytest.approx(single.yield_pseudo_acceleration / STANDARD_GRAVITY, rel=1e-15)
+    assert not hasattr(single, "yield_force") and not hasattr(single, "elastic_force")
+    assert single.method == "linear" and single.beta == 1 / 6 and "Newmark 1959" in single.method.describe()
+    assert spectrum.method.name == "average" and spectrum.gamma == 0.5
+    with pytest.raises(TypeError):
+        type(single)(0.5)  # keyword-only fields

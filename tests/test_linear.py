@@ -423,3 +423,36 @@ def test_bad_spectrum_input_names_the_index():
         elastic_spectrum(record, [0.1, 0.2, -1.0])
     with pytest.raises(ValueError, match=r"`dampings` .* index 1 holds 20.0; 20 looks like a percentage: enter 0.2"):
         elastic_spectrum(record, [0.1], [0.05, 20.0])
+
+
+# --- result objects -------------------------------------------------------------
+
+
+def test_results_have_short_one_line_reprs_and_the_method():
+    """repr is one line with shapes, method and peaks (no arrays); the Method and its describe() are on the result."""
+    record = _random_record(2, n=3000)
+    spectrum = elastic_spectrum(record, period_grid(0.1, 4.0, 80), [0.02, 0.05, 0.1])
+    single = linear_response(record, 0.5, 0.05, "linear")
+    for result in (spectrum, single):
+        text = repr(result)
+        assert "\n" not in text and len(text) < 240 and "array" not in text
+    assert repr(spectrum).startswith("ElasticSpectrum(3 dampings × 80 periods, T 0.1-4 s, ζ 0.02-0.1, method='average'")
+    j = int(np.argmax(spectrum.psa) % 80)
+    assert f"max PSA={spectrum.psa.max():.4g} m/s² at T={spectrum.periods[j]:g} s" in repr(spectrum)
+    assert f"SD={single.peak_displacement:.4g} m" in repr(single) and "method='linear'" in repr(single)
+    assert single.method == "linear" and single.beta == 1 / 6 and single.gamma == 0.5
+    assert single.method.describe().startswith("linear acceleration (Newmark 1959)")
+    assert spectrum.method.name == "average" and elastic_spectrum(record, [0.5], method="exact").method == "exact"
+
+
+def test_results_are_built_from_named_fields():
+    """Result constructors take keywords only (no long positional argument lists)."""
+    from groundstep.core import ElasticSpectrum, LinearResponse
+
+    single = linear_response(_random_record(2, n=50), 0.5)
+    with pytest.raises(TypeError):
+        LinearResponse(0.5, 0.05)  # type: ignore[misc]
+    with pytest.raises(TypeError):
+        ElasticSpectrum(np.ones(1))  # type: ignore[misc]
+    copy = LinearResponse(**{name: getattr(single, name) for name in LinearResponse.__dataclass_fields__})
+    assert copy.peak_displacement == single.peak_displacement
