@@ -26,6 +26,7 @@ import numpy as np
 from groundstep.core import Record, elastic_spectrum, inelastic_response, period_grid
 from groundstep.core import _kernels_inelastic as _kernels
 from groundstep.core import inelastic as _inelastic
+from groundstep.core.methods import resolve_method, substep_counts
 
 REPEATS = 5
 STEPS = 8000
@@ -64,7 +65,7 @@ def main() -> None:
     # --- one oscillator ----------------------------------------------------
     for label, reduction in (("yielding, R = 4", 4.0), ("elastic, R = 0.5", 0.5)):
         inelastic_response(record, 1.0, reduction_factor=reduction)  # compile / load cache
-        seconds = _best(lambda: inelastic_response(record, 1.0, reduction_factor=reduction))
+        seconds = _best(lambda r=reduction: inelastic_response(record, 1.0, reduction_factor=r))
         result = inelastic_response(record, 1.0, reduction_factor=reduction)
         print(
             f"inelastic_response T = 1 s, {label}: {seconds * 1e3:.2f} ms, "
@@ -77,7 +78,7 @@ def main() -> None:
     n, omega = record.n, 2 * np.pi
     out = [np.empty(n) for _ in range(6)]
     info = np.zeros(_kernels.INFO_SIZE)
-    fy = 0.25 * inelastic_response(record, 1.0, reduction_factor=1.0).yield_force  # R = 4
+    fy = 0.25 * inelastic_response(record, 1.0, reduction_factor=1.0).yield_pseudo_acceleration  # R = 4
 
     def kernel():
         _kernels.history(-record.accel, DT, 1, omega**2, 0.1 * omega, fy, 0.0, 0.25, 0.5, 1e-9, 20, 256, *out, info)
@@ -90,10 +91,11 @@ def main() -> None:
     for shortest, longest in ((0.05, 5.0), (0.01, 10.0)):
         periods = period_grid(shortest, longest, 100)
 
-        def run(stats=None):
+        def run(stats=None, periods=periods):
             return _inelastic._ductility_spectrum(
-                record, periods, ductilities, 0.05, 0.0, "average", 0.1, 1e-9, 20, stats
-            )
+                record, periods, ductilities, damping=0.05, method="average", hardening=0.0,
+                max_step_ratio=0.1, tolerance=1e-9, max_iterations=20, stats=stats,
+            )  # fmt: skip
 
         run()
         walls, kernel_ns = [], []
@@ -104,8 +106,8 @@ def main() -> None:
             walls.append(time.perf_counter() - began)
             kernel_ns.append(stats["kernel_seconds"] / stats["oscillator_steps"] * 1e9)
         wall = min(walls)
-        elastic = _best(lambda: elastic_spectrum(record, periods, [0.05]))
-        substeps = _inelastic.substep_counts(record.dt, periods, _inelastic.resolve_method("average"), 0.1)
+        elastic = _best(lambda p=periods: elastic_spectrum(record, p, [0.05]))
+        substeps = substep_counts(record.dt, periods, resolve_method("average"), 0.1)
         print(
             f"\nductility_spectrum, 100 periods {shortest:g}-{longest:g} s (sub-steps up to {substeps.max()}), "
             f"ductilities {ductilities}:"

@@ -233,7 +233,7 @@ _LANE_GROUP = 4
 
 @njit(cache=True, parallel=True, fastmath=True)
 def peaks(load, dt, beta, gamma, hardening, k, c, fy, tol, substeps, starts, max_iter, peak, failed):
-    """Peak |u| at the sample times of many yielding oscillators at once.
+    """Peak |u|, read at every sub-step, of many yielding oscillators at once.
 
     Parameters
     ----------

@@ -43,7 +43,7 @@ from .linear import (  # one source
     elastic_spectrum,
     linear_response,
 )
-from .methods import substep_counts
+from .methods import Method, substep_counts
 from .record import Record
 from .units import STANDARD_GRAVITY
 
@@ -57,19 +57,18 @@ __all__ = [
 ]
 
 
-
 def inelastic_response(
     record: Record,
     period: float,
     damping: float = DEFAULT_DAMPING,
+    method: str | tuple[float, float] | Method = "average",
     *,
     yield_coefficient: float | None = None,
     reduction_factor: float | None = None,
     hardening: float = 0.0,
-    method: str | tuple[float, float] = "average",
+    max_step_ratio: float | None = DEFAULT_STEP_RATIO,
     tolerance: float = DEFAULT_TOLERANCE,
     max_iterations: int = DEFAULT_MAX_ITERATIONS,
-    max_step_ratio: float | None = DEFAULT_STEP_RATIO,
     energy_histories: bool = False,
 ) -> InelasticResponse:
     """Response history of one yielding (bilinear) single-degree-of-freedom oscillator.
@@ -83,6 +82,9 @@ def inelastic_response(
     damping : float, default 0.05
         Ratio of critical damping ζ of the elastic oscillator, in [0, 1);
         the damping coefficient c = 2ζω·m stays constant when it yields.
+    method : {"average", "linear"} or (beta, gamma), default "average"
+        Newmark average acceleration (β = 1/4, γ = 1/2), linear acceleration
+        (β = 1/6, γ = 1/2) or another implicit pair (β > 0).
     yield_coefficient : float, optional
         Strength as fy / (m·g) [-], > 0, with g = 9.80665 m/s².
     reduction_factor : float, optional
@@ -93,17 +95,14 @@ def inelastic_response(
     hardening : float, default 0
         Post-yield stiffness as a fraction α of the elastic stiffness, in
         [0, 1); 0 is elastoplastic. Kinematic hardening.
-    method : {"average", "linear"} or (beta, gamma), default "average"
-        Newmark average acceleration (β = 1/4, γ = 1/2), linear acceleration
-        (β = 1/6, γ = 1/2) or another implicit pair (β > 0).
+    max_step_ratio : float or None, default 0.1
+        Largest Δt/T; longer record steps are split into equal sub-steps
+        with the excitation linear in between, as in `linear_response`.
     tolerance : float, default 1e-9
         Newton iterations stop when |R| <= tolerance·(fy/m + max|ü_g|), R the
         residual force per unit mass [m/s²]; in (0, 0.01).
     max_iterations : int, default 20
         Newton iterations per step before the step is split and repeated.
-    max_step_ratio : float or None, default 0.1
-        Largest Δt/T; longer record steps are split into equal sub-steps
-        with the excitation linear in between, as in `linear_response`.
     energy_histories : bool, default False
         Also return the energy at every sample.
 
@@ -138,7 +137,9 @@ def inelastic_response(
     2·(1 - α)·fy). Each step is implicit Newmark (Newmark 1959) with the
     residual R = p - ü - c·u̇ - fs(u) driven to zero by Newton-Raphson with
     the tangent of the current branch. Ductility μ = max|u| / u_y with
-    u_y = fy/k, over the sample times.
+    u_y = fy/k, the peak read at every sub-step (as if the record had been
+    resampled linearly onto the sub-step grid), as is the elastic peak force
+    that `reduction_factor` divides.
 
     Energies per unit mass, relative formulation (Uang & Bertero 1990):
     E_I = -∫ü_g du = E_K + E_D + E_S + E_H. E_I and E_D use the trapezoid
@@ -246,9 +247,9 @@ def ductility_spectrum(
     periods: ArrayLike,
     ductilities: ArrayLike,
     damping: float = DEFAULT_DAMPING,
-    hardening: float = 0.0,
+    method: str | tuple[float, float] | Method = "average",
     *,
-    method: str | tuple[float, float] = "average",
+    hardening: float = 0.0,
     max_step_ratio: float | None = DEFAULT_STEP_RATIO,
     tolerance: float = DEFAULT_TOLERANCE,
     max_iterations: int = DEFAULT_MAX_ITERATIONS,
@@ -265,9 +266,11 @@ def ductility_spectrum(
         Target ductilities μ [-], each >= 1.
     damping : float, default 0.05
         Ratio of critical damping ζ, in [0, 1).
+    method : {"average", "linear"} or (beta, gamma), default "average"
+        As in `inelastic_response`.
     hardening : float, default 0
         Post-yield stiffness ratio α, in [0, 1).
-    method, max_step_ratio, tolerance, max_iterations
+    max_step_ratio, tolerance, max_iterations
         As in `inelastic_response`.
 
     Returns
@@ -304,8 +307,8 @@ def ductility_spectrum(
     |μ - target| <= 1e-6·target. A crossing narrower than one grid interval
     (R ratio about 1.04) can be missed. μ = 1 gives fy = F_el exactly: the
     elastic spectrum (``achieved_ductility`` reports the oscillator's actual
-    μ there, above 1 only when it peaks between samples at sub-stepped
-    periods). At T = 0 the limit T → 0 is returned: fy = m·PGA,
+    μ there: 1 to round-off, since the yielding and the elastic peaks are
+    both read at every sub-step, between the samples at sub-stepped periods). At T = 0 the limit T → 0 is returned: fy = m·PGA,
     R = 1 for every ductility (a rigid oscillator cannot yield without
     unbounded ductility).
 
@@ -333,12 +336,12 @@ def ductility_spectrum(
     (3, 3)
     """
     return _ductility_spectrum(
-        record, periods, ductilities, damping, hardening, method, max_step_ratio, tolerance, max_iterations
+        record, periods, ductilities, damping, method, hardening, max_step_ratio, tolerance, max_iterations
     )
 
 
 def _ductility_spectrum(
-    record, periods, ductilities, damping, hardening, method, max_step_ratio, tolerance, max_iterations,
+    record, periods, ductilities, damping, method, hardening, max_step_ratio, tolerance, max_iterations,
     stats: dict | None = None,
 ) -> DuctilitySpectrum:  # fmt: skip
     """`ductility_spectrum`; fills `stats` (kernel time and oscillator-steps) when given."""
@@ -371,7 +374,7 @@ def _ductility_spectrum(
         reduction[np.ix_(search, moving)] = found_r
         achieved[np.ix_(search, moving)] = found_mu
     if moving.any() and not search.all():
-        # fy = F_el: 1 unless the oscillator peaks between samples (sub-stepped periods)
+        # fy = F_el: μ = 1 to round-off (both peaks are read at every sub-step)
         at_elastic = solver.ductility(period_values[moving], elastic[moving], substeps[moving])
         achieved[np.ix_(~search, moving)] = at_elastic
     fy = elastic[None, :] / reduction

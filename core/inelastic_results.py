@@ -81,9 +81,10 @@ class InelasticResponse:
         t [s], relative u [m], relative u̇ [m/s], ü + ü_g = -(c·u̇ + fs)
         [m/s²] and fs [m/s²].
     peak_displacement : float
-        max |u| [m].
+        max |u| [m], read at every sub-step (between samples when the record
+        step was sub-divided).
     time_of_peak_displacement : float
-        First time [s] of the peak.
+        First time [s] of the peak (a sub-step time).
     yield_displacement : float
         u_y = fy/k [m].
     ductility : float

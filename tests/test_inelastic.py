@@ -339,9 +339,9 @@ def test_equal_displacement_at_long_periods():
 
 def test_hardening_and_methods_in_spectrum(record):
     """Spectra with hardening and linear acceleration still hit their targets (consistency)."""
-    spec = ductility_spectrum(record, [0.5], [3.0], 0.02, 0.05, method="linear")
+    spec = ductility_spectrum(record, [0.5], [3.0], 0.02, "linear", hardening=0.05)
     result = inelastic_response(
-        record, 0.5, 0.02, yield_coefficient=spec.yield_coefficient[0, 0], hardening=0.05, method="linear"
+        record, 0.5, 0.02, "linear", yield_coefficient=spec.yield_coefficient[0, 0], hardening=0.05
     )
     assert result.ductility == pytest.approx(3.0, rel=1e-5)
     assert spec.hardening == 0.05 and spec.method == "linear"
@@ -386,7 +386,7 @@ def test_bad_period_damping_record_and_ductilities(record):
     with pytest.raises(ValueError, match=r"`ductilities` must be >= 1 .*index 1 holds 0.5"):
         ductility_spectrum(record, [0.5], [2.0, 0.5])
     with pytest.raises(ValueError, match=r"`hardening` must be a post-yield stiffness ratio in \[0, 1\)"):
-        ductility_spectrum(record, [0.5], [2.0], 0.05, 1.5)
+        ductility_spectrum(record, [0.5], [2.0], 0.05, hardening=1.5)
     silent = Record(np.zeros(50), 0.01)
     with pytest.raises(ValueError, match="no elastic force"):
         inelastic_response(silent, 0.5, reduction_factor=2.0)
@@ -413,3 +413,32 @@ def test_results_have_short_reprs_one_strength_name_and_the_method(record, spect
     assert spectrum.method.name == "average" and spectrum.gamma == 0.5
     with pytest.raises(TypeError):
         type(single)(0.5)  # keyword-only fields
+
+
+def test_yielding_peaks_are_read_between_samples(record):
+    """At a sub-stepped period the ductility equals that of the record resampled linearly onto the sub-step grid.
+
+    Reference: the same oscillator on an independently built record, the samples
+    linearly interpolated (numpy.interp) onto dt/2, which needs no sub-steps; the
+    peak of the sub-stepped run must come from between the original samples.
+    """
+    period, coefficient = 0.06, 0.3  # dt/T = 0.17 > 0.1: 2 sub-steps per record step; μ ≈ 5.6
+    with collect_warnings() as caught:
+        result = inelastic_response(record, period, yield_coefficient=coefficient)
+    assert result.substeps == 2 and len(caught) == 1
+    fine_time = np.arange(2 * record.n - 1) * (record.dt / 2)
+    fine = Record(np.interp(fine_time, record.time, record.accel), record.dt / 2, unit="m/s2")
+    reference = inelastic_response(fine, period, yield_coefficient=coefficient)
+    assert reference.substeps == 1
+    # same step size and load; the interpolated loads differ by round-off (1 ulp), which
+    # the yielding path carries through its branch changes: measured below 1e-13, so 1e-11
+    assert result.ductility == pytest.approx(reference.ductility, rel=1e-11)
+    assert result.time_of_peak_displacement == pytest.approx(reference.time_of_peak_displacement, abs=1e-12)
+    at_samples = np.max(np.abs(result.displacement)) / result.yield_displacement
+    assert at_samples < result.ductility * (1 - 1e-3)  # this oscillator peaks between two samples
+    assert not np.isclose(result.time_of_peak_displacement / record.dt % 1.0, 0.0, atol=1e-9)
+    with collect_warnings():
+        spectrum = ductility_spectrum(record, [period], [2.0])
+    resampled = ductility_spectrum(fine, [period], [2.0])
+    # both searches stop at |μ - 2| <= 2e-6 on the same μ(R) curve to 1e-11: R agrees to 1e-5
+    assert spectrum.reduction_factor[0, 0] == pytest.approx(resampled.reduction_factor[0, 0], rel=1e-5)
