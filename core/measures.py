@@ -8,12 +8,12 @@ imported here.
 from __future__ import annotations
 
 import math
-import warnings
 from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import NDArray
 
+from . import _notices
 from .checks import check_positive
 from .fourier import fourier_amplitude
 from .linear import SubstepWarning, elastic_spectrum
@@ -404,10 +404,11 @@ def ground_motion_measures(
         mean_period = _mean_period(record)
         spectrum_intensity, predominant_period = _spectral_measures(record)
     else:
-        warnings.warn(
-            "`record` holds only zeros: significant durations are 0, their start and end times, "
-            "the mean period and the predominant period are NaN",
-            MeasureWarning,
+        _notices.warn(
+            MeasureWarning(
+                "`record` holds only zeros: significant durations are 0, their start and end times, "
+                "the mean period and the predominant period are NaN"
+            ),
             stacklevel=2,
         )
         fraction = np.zeros_like(build_up)
@@ -480,10 +481,11 @@ def _mean_period(record: Record) -> float:
     low, high = MEAN_PERIOD_BAND
     nyquist = 0.5 / record.dt
     if nyquist < high:
-        warnings.warn(
-            f"record step {record.dt:g} s: the Nyquist frequency {nyquist:g} Hz cuts the mean-period band "
-            f"{low:g}-{high:g} Hz; Tm is taken over {low:g}-{nyquist:g} Hz",
-            MeasureWarning,
+        _notices.warn(
+            MeasureWarning(
+                f"record step {record.dt:g} s: the Nyquist frequency {nyquist:g} Hz cuts the mean-period band "
+                f"{low:g}-{high:g} Hz; Tm is taken over {low:g}-{nyquist:g} Hz"
+            ),
             stacklevel=3,
         )
     f = spectrum.frequencies
@@ -492,10 +494,11 @@ def _mean_period(record: Record) -> float:
     power = spectrum.amplitudes[band] ** 2
     total = float(power.sum())
     if total == 0.0:
-        warnings.warn(
-            f"the record has no Fourier amplitude at its FFT frequencies in {low:g}-{high:g} Hz "
-            f"({int(band.sum())} frequencies there): the mean period is NaN",
-            MeasureWarning,
+        _notices.warn(
+            MeasureWarning(
+                f"the record has no Fourier amplitude at its FFT frequencies in {low:g}-{high:g} Hz "
+                f"({int(band.sum())} frequencies there): the mean period is NaN"
+            ),
             stacklevel=3,
         )
         return math.nan
@@ -504,10 +507,12 @@ def _mean_period(record: Record) -> float:
 
 def _spectral_measures(record: Record) -> tuple[float, float]:
     """Spectrum intensity [m] and predominant period [s] from one 5 %-damped spectrum."""
-    with warnings.catch_warnings():
-        # short periods are sub-stepped on purpose (peaks read 10 times per period): documented, not warned
-        warnings.simplefilter("ignore", SubstepWarning)
+    with _notices.collect_warnings() as caught:  # per thread; no process-wide filter is touched
         spectrum = elastic_spectrum(record, PREDOMINANT_PERIODS, SPECTRUM_DAMPING, "exact")
+    for warning in caught:
+        # short periods are sub-stepped on purpose (peaks read 10 times per period): documented, not warned
+        if not isinstance(warning, SubstepWarning):
+            _notices.warn(warning, stacklevel=3)
     psv = spectrum.psv[0, _SI_SLICE]
     intensity = float(np.trapezoid(psv, SPECTRUM_INTENSITY_PERIODS))
     predominant = float(PREDOMINANT_PERIODS[int(np.argmax(spectrum.psa[0]))])

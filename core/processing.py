@@ -10,7 +10,6 @@ Hz). No spreadsheet library is imported here.
 from __future__ import annotations
 
 import math
-import warnings
 from collections.abc import Callable, Iterable
 
 import numpy as np
@@ -19,6 +18,7 @@ import scipy.signal
 from numpy.polynomial import legendre
 from numpy.typing import NDArray
 
+from . import _notices
 from .checks import check_integer, check_positive
 from .record import ProcessingStep, Record
 
@@ -292,10 +292,11 @@ def replay_history(record: Record, history: Iterable[ProcessingStep]) -> Record:
             )
         function, library = operation
         if step.library and step.library != library():
-            warnings.warn(
-                f"`history` index {index} ({step.operation}) was recorded with {step.library}; "
-                f"replaying with {library()}, so samples may differ in the last digits",
-                ReplayWarning,
+            _notices.warn(
+                ReplayWarning(
+                    f"`history` index {index} ({step.operation}) was recorded with {step.library}; "
+                    f"replaying with {library()}, so samples may differ in the last digits"
+                ),
                 stacklevel=2,
             )
         arguments = dict(step.parameters)
