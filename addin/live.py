@@ -1,113 +1,25 @@
-"""Fill result sheets in the open Excel workbook (xlwings), from the same layout as the file writer.
+"""The ``fill_results`` macro: fill the result sheets of the open Excel workbook (xlwings).
 
-``fill_results`` is the macro entry (``RunPython("import groundstep.addin.live as m; m.fill_results()")``
-or the xlwings ``@xw.sub`` button): it reads the record and settings from the
-workbook's named input cells, computes the report and writes the result
-sheets through `XlwingsWriter`, which implements the same small writer
-interface as the openpyxl writer (``report_render.SheetWriter``). Excel is
-needed to run it; its logic is tested with a stand-in book object that
-records writes.
+``RunPython("import groundstep.addin.live as m; m.fill_results()")`` or the
+xlwings ``@xw.sub`` button runs it: it reads the record and settings from the
+workbook's named input cells (``package.inputs``), computes the report
+(``result.content``) and writes the result sheets through
+``result.live_writer.XlwingsWriter``, from the same layout as the file writer.
 """
 
 from __future__ import annotations
 
-from typing import Any, Sequence
+from typing import Any
 
-from . import layout as lay
-from .report import Report, ReportSettings, build_report
-from .report_inputs import INPUT_NAMES, settings_from_cells
-from .report_render import SeriesRange, render
+import xlwings as xw
 
-try:  # xlwings imports on every platform; only calling into Excel needs Windows or macOS
-    import xlwings as xw
-except ImportError:  # pragma: no cover - xlwings is a declared dependency
-    xw = None
+from groundstep.addin.package.inputs import settings_from_cells
+from groundstep.addin.package.names import lookup_names
+from groundstep.addin.result.content import Report, ReportSettings, build_report
+from groundstep.addin.result.live_writer import XlwingsWriter
+from groundstep.addin.result.render import render
 
 __all__ = ["XlwingsWriter", "fill_open_book", "fill_results"]
-
-#: Excel's chart type name for straight lines without markers (xlwings spelling).
-_SCATTER = "xy_scatter_lines_no_markers"
-_LOG_SCALE = -4133  # Excel XlScaleType.xlScaleLogarithmic
-_CATEGORY_AXIS = 1  # Excel XlAxisType.xlCategory (the x axis of a scatter chart)
-_POINTS_PER_CM = 28.3465
-
-
-class XlwingsWriter:
-    """`report_render.SheetWriter` into an open xlwings ``Book``.
-
-    Result sheets written before by groundstep (their A1 holds the layout's
-    sheet title) are replaced; any other sheet of the same name is left alone
-    and the write stops with an error naming it.
-    """
-
-    def __init__(self, book: Any, titles: dict[str, str]) -> None:
-        self.book = book
-        self.titles = titles
-
-    def _sheet(self, name: str) -> Any:
-        return self.book.sheets[name]
-
-    def add_sheet(self, name: str) -> None:
-        existing = [sheet.name for sheet in self.book.sheets]
-        if name in existing:
-            old = self.book.sheets[name]
-            if old.range("A1").value != self.titles.get(name):
-                raise ValueError(
-                    f"the workbook already has a sheet {name!r} that groundstep did not write; "
-                    "rename it so the result sheets can be added"
-                )
-            old.delete()
-            existing.remove(name)
-        if existing:
-            self.book.sheets.add(name, after=self.book.sheets[existing[-1]])
-        else:
-            self.book.sheets.add(name)
-
-    def write_cells(self, sheet: str, row: int, column: int, values: Sequence[Sequence[Any]], number_format, bold) -> None:
-        rows = [list(line) for line in values]
-        target = self._sheet(sheet).range((row, column)).resize(len(rows), len(rows[0]))
-        if any(isinstance(v, str) and v.startswith("=") for line in rows for v in line):
-            target.formula = rows
-        else:
-            target.value = rows
-        if number_format:
-            target.number_format = number_format
-        if bold:
-            target.font.bold = True
-
-    def define_name(self, name: str, sheet: str, reference: str) -> None:
-        names = self.book.names
-        if name in [n.name for n in names]:
-            names[name].delete()
-        names.add(name, f"={sheet}!{reference}")
-
-    def set_column_width(self, sheet: str, column: int, width: float) -> None:
-        self._sheet(sheet).range((1, column)).column_width = width
-
-    def add_chart(self, sheet: str, chart: lay.Chart, x: SeriesRange, series) -> None:
-        ws = self._sheet(sheet)
-        anchor = ws.range((chart.row, chart.column))
-        plot = ws.charts.add(
-            anchor.left, anchor.top, chart.width_cm * _POINTS_PER_CM, chart.height_cm * _POINTS_PER_CM
-        )
-        plot.chart_type = _SCATTER
-        first = series[0][1]
-        plot.set_source_data(ws.range((x.first_row, x.column), (x.last_row, first.column)))
-        try:  # series names, all series and the log axis need Excel's own object model (Windows)
-            native = plot.api[1]
-            while native.SeriesCollection().Count:
-                native.SeriesCollection(1).Delete()
-            for title, y in series:
-                line = native.SeriesCollection().NewSeries()
-                line.Name = title
-                line.XValues = "=" + x.address()
-                line.Values = "=" + y.address()
-            native.HasTitle = True
-            native.ChartTitle.Text = chart.title
-            if chart.log_x:
-                native.Axes(_CATEGORY_AXIS).ScaleType = _LOG_SCALE
-        except (AttributeError, TypeError, IndexError):
-            pass  # elsewhere the chart keeps the first series on a linear axis
 
 
 def fill_open_book(book: Any, base: ReportSettings | None = None, *, command: str = "live fill (xlwings)") -> Report:
@@ -117,7 +29,7 @@ def fill_open_book(book: Any, base: ReportSettings | None = None, *, command: st
     ----------
     book : xlwings.Book (or an object with the same members)
         The open workbook; its input cells are found by the names in
-        ``report_inputs.INPUT_NAMES``.
+        ``package.names.INPUTS``.
     base : ReportSettings, optional
         Settings where the workbook is silent.
 
@@ -129,7 +41,7 @@ def fill_open_book(book: Any, base: ReportSettings | None = None, *, command: st
     available = {n.name.split("!")[-1]: n for n in book.names}
 
     def get(key: str) -> Any:
-        for name in INPUT_NAMES[key]:
+        for name in lookup_names(key):
             if name in available:
                 return available[name].refers_to_range.options(ndim=2).value
         return None
@@ -142,10 +54,7 @@ def fill_open_book(book: Any, base: ReportSettings | None = None, *, command: st
     return report
 
 
-def _fill_results() -> None:
-    """Fill the result sheets of the workbook that called this macro."""
+@xw.sub
+def fill_results() -> None:
+    """Fill the result sheets of the calling workbook from its named input cells (xlwings macro)."""
     fill_open_book(xw.Book.caller())
-
-
-fill_results = xw.sub(_fill_results) if xw is not None else _fill_results
-fill_results.__doc__ = "Fill the result sheets of the calling workbook from its named input cells (xlwings macro)."

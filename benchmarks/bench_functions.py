@@ -20,8 +20,8 @@ import time
 
 import numpy as np
 
-from groundstep.addin import _cache
 from groundstep.addin.functions import STEP_PEAK
+from groundstep.addin.worksheet import cache as _cache
 from groundstep.core import __version__
 
 SAMPLES = 20_000

@@ -15,7 +15,7 @@ import time
 from pathlib import Path
 
 from groundstep.addin.cli import main
-from groundstep.addin.verify import verify_workbook
+from groundstep.addin.result.verify import verify_workbook
 
 RUNS = 3
 

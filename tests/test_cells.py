@@ -1,4 +1,4 @@
-"""Tests of groundstep.addin._cells: spreadsheet cells to clean numbers.
+"""Tests of groundstep.addin.worksheet.cells: spreadsheet cells to clean numbers.
 
 Cells are shaped as Excel hands them to xlwings: a single cell as a scalar,
 a range as a list of row lists, blank and error cells as None (or, with
@@ -13,9 +13,9 @@ import datetime
 import numpy as np
 import pytest
 
-from groundstep.addin import _cells
-from groundstep.addin._cells import CellError
-from groundstep.core._units import ACCELERATION_UNITS, LENGTH_UNITS
+from groundstep.addin.worksheet import cells as _cells
+from groundstep.addin.worksheet.cells import CellError
+from groundstep.core.units import ACCELERATION_UNITS, LENGTH_UNITS
 
 ACCEL = "the acceleration range"
 

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import csv
 import hashlib
+import importlib
 import json
 import os
 import shutil
@@ -16,7 +17,7 @@ import openpyxl
 import pytest
 from numpy.testing import assert_allclose
 
-from groundstep.addin import layout as lay
+from groundstep.addin import common as lay
 from groundstep.addin.cli import main
 from groundstep.core import Record, elastic_spectrum
 from groundstep.core.synthetic import synthetic_record
@@ -226,7 +227,7 @@ def test_spectrum_many_files_in_parallel(tmp_path):
     (tmp_path / "bad.txt").write_text("1\n2\nthree\n")
     out_dir = tmp_path / "out"
     out_dir.mkdir()
-    result = _run("spectrum", *files, tmp_path / "bad.txt", "--dt", "0.01", "--out-dir", out_dir,
+    result = _run("spectrum", *files, tmp_path / "bad.txt", "--dt", "0.01", "--unit", "g", "--out-dir", out_dir,
                   "--workers", "2", "--dampings", "0.02,0.05", "--periods", "0.05,5,20")  # fmt: skip
     assert result.returncode == 2  # one bad file
     assert "bad.txt: line 3 is not numeric" in result.stderr
@@ -241,11 +242,11 @@ def test_spectrum_many_files_in_parallel(tmp_path):
     table = np.array(rows[1:], dtype=float)
     # values are written with repr (17 digits): equal to the core API within rounding of the period grid
     assert_allclose(table[:, 7], spectrum.psa[1] / 9.80665, rtol=1e-12)
-    json_run = _run("spectrum", files[0], "--dt", "0.01", "--out-dir", out_dir, "--format", "json", "--quiet")
+    json_run = _run("spectrum", files[0], "--dt", "0.01", "--unit", "g", "--out-dir", out_dir, "--format", "json", "--quiet")
     assert json_run.returncode == 0 and json_run.stderr == ""
     data = json.loads((out_dir / "rec0.spectrum.json").read_text())
     assert data["units"] == {"sd": "m", "psv": "m/s", "psa": "g", "sa": "g"} and data["caution"] == lay.CAUTION
-    again = _run("spectrum", files[0], "--dt", "0.01", "--out-dir", out_dir, "--format", "json")
+    again = _run("spectrum", files[0], "--dt", "0.01", "--unit", "g", "--out-dir", out_dir, "--format", "json")
     assert again.returncode == 2 and "exists; pass --force" in again.stderr
 
 
@@ -258,7 +259,7 @@ def test_warm_reports_first_call_time(capsys):
 
 def test_templates_command_writes_templates(tmp_path, capsys):
     """templates DIR writes the calculation-package templates (module of the worksheet-functions work)."""
-    pytest.importorskip("groundstep.addin.templates", reason="addin/templates.py has not landed yet")
+    importlib.import_module("groundstep.addin.package.template")
     assert main(["templates", str(tmp_path / "t")]) == 0
     assert any(p.suffix in (".xlsx", ".xlsm") for p in (tmp_path / "t").iterdir())
 
@@ -283,15 +284,25 @@ def test_bad_option_values_are_one_line(capsys, tmp_path):
     """Malformed --periods and --workers give exit 2 with the option named."""
     path = tmp_path / "r.txt"
     path.write_text("0\n1\n0\n")
-    assert main(["spectrum", str(path), "--dt", "0.01", "--periods", "1,2", "--out-dir", str(tmp_path)]) == 2
+    assert main(["spectrum", str(path), "--dt", "0.01", "--unit", "g", "--periods", "1,2", "--out-dir", str(tmp_path)]) == 2
     assert "--periods '1,2': give SHORTEST,LONGEST,COUNT" in capsys.readouterr().err
-    assert main(["spectrum", str(path), "--dt", "0.01", "--workers", "0"]) == 2
+    assert main(["spectrum", str(path), "--dt", "0.01", "--unit", "g", "--workers", "0"]) == 2
     assert "--workers must be >= 1, got 0" in capsys.readouterr().err
+
+
+def test_spectrum_never_assumes_the_unit(capsys, tmp_path):
+    """Without --unit, spectrum stops and names the option (a cm/s2 file once came out as PGA 336 g)."""
+    path = tmp_path / "r.txt"
+    path.write_text("0\n1\n0\n")
+    assert main(["spectrum", str(path), "--dt", "0.01", "--out-dir", str(tmp_path)]) == 2
+    err = capsys.readouterr().err
+    assert "give the acceleration unit of the files with --unit" in err
+    assert not (tmp_path / "r.spectrum.csv").exists()
 
 
 def test_fill_reads_the_calculation_package_template(tmp_path, capsys):
     """A filled-in copy of the template (its named input cells) gives a verifiable result workbook."""
-    templates = pytest.importorskip("groundstep.addin.templates", reason="addin/templates.py has not landed yet")
+    templates = importlib.import_module("groundstep.addin.package.template")
     record = synthetic_record(4.0, 0.01, pga=0.25, seed=31)
     book = templates.build_calculation_package()
 

@@ -13,13 +13,14 @@ import pytest
 ROOT = Path(__file__).resolve().parents[1]
 CAUTION = "Results support, not replace, engineering judgement; local codes and licensed practice govern."
 
-CORE_MODULES = [
-    "groundstep.core.record",
-    "groundstep.core.linear",
-    "groundstep.core._units",
-    "groundstep.core.synthetic",
-    "groundstep.core.measures",
-]
+#: Every public module of the core (no leading underscore): each keeps runnable examples.
+CORE_MODULES = sorted(
+    f"groundstep.core.{path.stem}" for path in (ROOT / "core").glob("*.py") if not path.stem.startswith("_")
+)
+#: Public modules whose names are plain tables or result classes without an Examples section.
+_NO_EXAMPLES = {"groundstep.core.defaults", "groundstep.core.results", "groundstep.core.inelastic_results"}
+#: The adapter subpackages in import order: each may import only those after it (and core's public modules).
+ADAPTER_LAYERS = ("cli", "live", "functions", "package", "result", "worksheet", "common")
 
 
 def _readme_block(marker: str) -> str:
@@ -50,7 +51,7 @@ def test_docstring_examples_run(name):
     module = importlib.import_module(name)
     failures, attempted = doctest.testmod(module, optionflags=doctest.NORMALIZE_WHITESPACE)
     assert failures == 0
-    if name != "groundstep.core._units":
+    if name not in _NO_EXAMPLES:
         assert attempted > 0
 
 
@@ -72,3 +73,53 @@ def test_core_imports_no_spreadsheet_library():
     for path in (ROOT / "core").rglob("*.py"):
         source = path.read_text(encoding="utf-8")
         assert not re.search(r"^\s*(import|from)\s+(openpyxl|xlwings)\b", source, re.M), path
+
+
+def _imports(path: Path) -> list[str]:
+    """Absolute names of the groundstep modules a file imports (relative imports resolved)."""
+    import ast
+
+    package = ["groundstep", path.parent.name if path.parent.name != "addin" else "addin"]
+    if path.parent.parent.name == "addin":
+        package = ["groundstep", "addin", path.parent.name]
+    elif path.parent.name == "core":
+        package = ["groundstep", "core"]
+    found = []
+    for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+        if isinstance(node, ast.ImportFrom):
+            if node.level:
+                base = package[: len(package) - node.level + 1]
+                found.append(".".join(base + ([node.module] if node.module else [])))
+            elif node.module:
+                found.append(node.module)
+        elif isinstance(node, ast.Import):
+            found.extend(alias.name for alias in node.names)
+    return [name for name in found if name.startswith("groundstep")]
+
+
+def test_nothing_outside_core_imports_private_core_modules():
+    """addin/ reaches the core through its public modules only (benchmarks may time private kernels)."""
+    offenders = []
+    for folder in ("addin",):
+        for path in (ROOT / folder).rglob("*.py"):
+            offenders += [f"{path.relative_to(ROOT)}: {name}" for name in _imports(path) if "groundstep.core._" in name]
+    assert offenders == []
+
+
+def test_adapter_layers_import_one_way():
+    """Each addin subpackage imports only the layers below it (cli -> ... -> worksheet -> common): no cycles."""
+    rank = {name: index for index, name in enumerate(ADAPTER_LAYERS)}
+    wrong = []
+    for path in (ROOT / "addin").rglob("*.py"):
+        relative = path.relative_to(ROOT / "addin").parts
+        layer = relative[0].removesuffix(".py")
+        if layer not in rank:
+            continue
+        for name in _imports(path):
+            parts = name.split(".")
+            if parts[:2] != ["groundstep", "addin"] or len(parts) < 3:
+                continue
+            target = parts[2]
+            if target in rank and target != layer and rank[target] < rank[layer]:
+                wrong.append(f"{'/'.join(relative)} imports {name}")
+    assert wrong == []

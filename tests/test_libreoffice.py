@@ -20,9 +20,9 @@ import numpy as np
 import openpyxl
 import pytest
 
-from groundstep.addin import layout as lay
 from groundstep.addin.cli import main
-from groundstep.addin.report import stored_record
+from groundstep.addin.result import layout
+from groundstep.addin.result.content import stored_record
 from groundstep.core import Record, linear_response
 from groundstep.core.synthetic import synthetic_record
 
@@ -66,7 +66,7 @@ def recalculate(path: Path, out_dir: Path) -> Path:
 
 
 def _name(book, key):
-    sheet, ref = book.defined_names[lay.NAME_PREFIX + key].attr_text.split("!")
+    sheet, ref = book.defined_names[layout.NAME_PREFIX + key].attr_text.split("!")
     return book[sheet.strip("'")][ref.replace("$", "")]
 
 
@@ -93,7 +93,7 @@ def workbooks(tmp_path_factory):
 
     text = folder / "rec.txt"
     np.savetxt(text, synthetic_record(5.0, 0.005, pga=0.15, seed=3).accel_in("g"), fmt="%.7g")
-    assert main(["spectrum", str(text), "--dt", "0.005", "--format", "xlsx", "--out-dir", str(folder), "--quiet"]) == 0
+    assert main(["spectrum", str(text), "--dt", "0.005", "--unit", "g", "--format", "xlsx", "--out-dir", str(folder), "--quiet"]) == 0
     made["spectrum"] = folder / "rec.spectrum.xlsx"
     return {key: (path, recalculate(path, folder / "calc")) for key, path in made.items()}
 

@@ -7,9 +7,9 @@ import pytest
 from numpy.testing import assert_allclose
 
 from groundstep.addin import live
-from groundstep.addin.report import Oscillator, ReportSettings, build_report
-from groundstep.addin.report_render import column_letter
-from groundstep.addin.workbook import write_report
+from groundstep.addin.result.content import Oscillator, ReportSettings, build_report
+from groundstep.addin.result.offline import write_report
+from groundstep.addin.result.render import column_letter
 from groundstep.core.synthetic import synthetic_record
 
 

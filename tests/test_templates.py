@@ -24,9 +24,11 @@ import pytest
 from openpyxl.utils import range_boundaries
 from openpyxl.worksheet.formula import ArrayFormula
 
-from groundstep.addin import _cache, functions, templates
+from groundstep.addin import functions
+from groundstep.addin.package import template as templates
+from groundstep.addin.worksheet import cache as _cache
 from groundstep.core import Record, __version__, elastic_spectrum, linear_response
-from groundstep.core._units import ACCELERATION_UNITS, LENGTH_UNITS
+from groundstep.core.units import ACCELERATION_UNITS, LENGTH_UNITS
 
 COMMITTED = Path(__file__).resolve().parents[1] / "workbook_templates"
 # Same core computation on the same samples; only unit divisions differ.
@@ -70,7 +72,7 @@ def test_committed_templates_match_the_generator(tmp_path, name):
     assert not list(tmp_path.glob(".*.tmp"))  # no temporary file left behind
     fresh = cells_of(openpyxl.load_workbook(tmp_path / name))
     committed = cells_of(openpyxl.load_workbook(COMMITTED / name))
-    assert fresh == committed, "run: python -m groundstep.addin.templates workbook_templates"
+    assert fresh == committed, "run: python -m groundstep.addin.package.template workbook_templates"
 
 
 def test_template_structure():
@@ -256,7 +258,7 @@ def reference_value(name, args):
         periods = numbers_in(args["periods"])
         ductilities = np.array(args["ductilities"][0])
         spectrum = ductility_spectrum(
-            RECORD, periods, ductilities, args["damping"], args["hardening"], method=args["method"]
+            RECORD, periods, ductilities, args["damping"], method=args["method"], hardening=args["hardening"]
         )
         body = np.asarray(spectrum.yield_coefficient).T
         return [["corner", *ductilities]] + [[t, *row] for t, row in zip(periods, body)]

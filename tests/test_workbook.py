@@ -1,10 +1,9 @@
-"""Tests of the result workbook (openpyxl writer), its layout and the verify module."""
+"""Tests of the result workbook: its content (groundstep.addin.result.content) and the openpyxl writer."""
 
 from __future__ import annotations
 
 import math
 import re
-import shutil
 import warnings
 import zipfile
 from xml.etree import ElementTree
@@ -12,37 +11,18 @@ from xml.etree import ElementTree
 import numpy as np
 import openpyxl
 import pytest
+from conftest import DAMPINGS, PERIODS
 from numpy.testing import assert_allclose
 
-from groundstep.addin import layout as lay
-from groundstep.addin.report import Oscillator, ReportSettings, build_report, stored_record
-from groundstep.addin.verify import NotAResultWorkbook, verify_workbook
-from groundstep.addin.workbook import write_report
+from groundstep.addin import common as lay
+from groundstep.addin.result import layout, sheets
+from groundstep.addin.result.content import Oscillator, ReportSettings, build_report, stored_record
+from groundstep.addin.result.offline import write_report
+from groundstep.addin.result.verify import verify_workbook
 from groundstep.core import STANDARD_GRAVITY, Record, elastic_spectrum, inelastic_response, linear_response
 from groundstep.core.synthetic import synthetic_record
 
 SHEETS = ["Summary", "Record", "Spectra", "Peaks", "Verification", "Audit"]
-PERIODS = (0.05, 0.1, 0.2, 0.5, 1.0, 2.0, 5.0)
-DAMPINGS = (0.02, 0.05)
-
-
-@pytest.fixture(scope="module")
-def made(tmp_path_factory):
-    """A small result workbook: 3 s record in cm/s², 7 periods, 2 dampings, 3 oscillators (2 with R)."""
-    record = synthetic_record(3.0, 0.01, pga=250.0, unit="cm/s2", seed=21, name="workbook test")
-    settings = ReportSettings(
-        periods=PERIODS,
-        dampings=DAMPINGS,
-        oscillators=(
-            Oscillator("short", 0.3, 0.05, 3.0),
-            Oscillator("long", 1.5, 0.02),
-            Oscillator("mid", 0.8, 0.05, 2.0),
-        ),
-        project=(("project", "=HYPERLINK(\"x\")"), ("site", "invented site")),
-    )
-    report = build_report(record, settings, command="groundstep test")
-    path = write_report(report, tmp_path_factory.mktemp("wb") / "result.xlsx")
-    return record, settings, report, path
 
 
 def test_sheets_in_order_and_caution(made):
@@ -89,10 +69,10 @@ def test_verification_sheet_holds_the_recurrence_as_formulas(made):
     """Every record step has a formula row; the Python peak equals linear_response with the sheet's β, γ."""
     record, _, report, path = made
     ws = openpyxl.load_workbook(path)["Verification"]
-    rows = range(lay.RECORD_FIRST_ROW, lay.RECORD_FIRST_ROW + record.n)
+    rows = range(sheets.RECORD_FIRST_ROW, sheets.RECORD_FIRST_ROW + record.n)
     formulas = [ws.cell(row=r, column=9).value for r in rows]  # the u column (I)
     assert all(isinstance(f, str) and f.startswith("=") for f in formulas)
-    assert f"I{lay.RECORD_FIRST_ROW}" in formulas[1]  # row i uses row i-1
+    assert f"I{sheets.RECORD_FIRST_ROW}" in formulas[1]  # row i uses row i-1
     inputs = report.content["verification_inputs"]
     assert (inputs["verification_beta"], inputs["verification_gamma"]) == (0.25, 0.5)
     direct = linear_response(stored_record(record), inputs["verification_period"], inputs["verification_damping"])
@@ -154,60 +134,6 @@ def test_existing_output_needs_force(made, tmp_path):
     assert [p.name for p in tmp_path.iterdir()] == ["out.xlsx"]
 
 
-def test_verify_passes_on_a_fresh_workbook(made):
-    """verify recomputes every checked block and finds them all equal."""
-    _, _, _, path = made
-    checks = verify_workbook(path)
-    assert all(c.ok for c in checks), [c.line() for c in checks if not c.ok]
-    assert {c.block for c in checks} >= {"record_sha256", "spectra_table", "peaks_table", "verification_steps"}
-
-
-@pytest.mark.parametrize(
-    ("sheet", "cell", "block"),
-    [
-        ("Spectra", "D7", "spectra_table"),
-        ("Peaks", "D5", "peaks_table"),
-        ("Summary", "B15", "record_summary"),
-        ("Peaks", "H12", "yielding_table"),  # ductility of the second yielding oscillator ("mid")
-        ("Peaks", "F11", "yielding_table"),  # yield displacement of the first ("short")
-        ("Summary", "B30", "yielding_summary"),  # largest ductility demand
-    ],
-)
-def test_verify_names_the_block_with_a_changed_cell(made, tmp_path, sheet, cell, block):
-    """Changing one result cell (in a copy, with openpyxl) makes verify fail that block only."""
-    _, _, _, path = made
-    copy = tmp_path / "edited.xlsx"
-    shutil.copy(path, copy)
-    book = openpyxl.load_workbook(copy)
-    book[sheet][cell].value = book[sheet][cell].value * 1.001
-    book.save(copy)
-    bad = [c for c in verify_workbook(copy) if not c.ok]
-    assert [c.block for c in bad] == [block]
-    assert f"{cell} holds" in bad[0].message
-
-
-def test_verify_detects_an_edited_record_sample(made, tmp_path):
-    """Changing one acceleration sample breaks the SHA-256 check."""
-    _, _, _, path = made
-    copy = tmp_path / "edited.xlsx"
-    shutil.copy(path, copy)
-    book = openpyxl.load_workbook(copy)
-    book["Record"]["B50"].value = 1.0
-    book.save(copy)
-    bad = {c.block for c in verify_workbook(copy) if not c.ok}
-    assert "record_sha256" in bad
-
-
-def test_verify_refuses_other_files(tmp_path):
-    """A text file and a workbook without our format mark raise NotAResultWorkbook."""
-    text = tmp_path / "notes.xlsx"
-    text.write_text("hello")
-    with pytest.raises(NotAResultWorkbook, match="cannot be opened as an .xlsx"):
-        verify_workbook(text)
-    other = tmp_path / "other.xlsx"
-    openpyxl.Workbook().save(other)
-    with pytest.raises(NotAResultWorkbook, match="is not a groundstep result workbook"):
-        verify_workbook(other)
 
 
 def test_verification_period_must_not_need_substeps():
@@ -236,7 +162,7 @@ def test_stored_record_survives_the_file(tmp_path):
 
 
 def _named(book, key):
-    sheet, ref = book.defined_names[lay.NAME_PREFIX + key].attr_text.split("!")
+    sheet, ref = book.defined_names[layout.NAME_PREFIX + key].attr_text.split("!")
     cells = book[sheet.strip("'")][ref.replace("$", "")]
     return [row[0].value for row in cells] if isinstance(cells, tuple) else cells.value
 
@@ -319,18 +245,6 @@ def test_audit_names_the_yielding_settings(made):
     assert "bilinear, elastoplastic" in text and "beta = 0.25, gamma = 0.5" in text and "Newton-Raphson" in text
 
 
-def test_verify_reads_r_back_from_the_peaks_table(made, tmp_path):
-    """R is read back from the elastic table: changing it there makes the recomputed yielding table differ."""
-    _, _, _, path = made
-    copy = tmp_path / "edited.xlsx"
-    shutil.copy(path, copy)
-    book = openpyxl.load_workbook(copy)
-    book["Peaks"]["L5"].value = 2.5  # R of "short" in the elastic table
-    book.save(copy)
-    bad = {c.block for c in verify_workbook(copy) if not c.ok}
-    assert "yielding_table" in bad and "peaks_table" not in bad
-
-
 def test_no_reduction_factor_gives_an_empty_yielding_table(tmp_path):
     """Without R the yielding table has a title and header only, the Summary no yielding block; verify passes."""
     record = synthetic_record(2.0, 0.01, pga=0.2, seed=5)
@@ -349,6 +263,8 @@ def test_no_reduction_factor_gives_an_empty_yielding_table(tmp_path):
     ("method", "used", "note"),
     [("linear", "linear", False), ("exact", "average", True), ((0.3, 0.6), (0.3, 0.6), False)],
 )
+
+
 def test_yielding_method_follows_the_workbook_method(method, used, note):
     """Yielding oscillators use the workbook's implicit Newmark method; 'exact' falls back to average acceleration."""
     record = synthetic_record(2.0, 0.01, pga=0.3, seed=6)
@@ -391,6 +307,8 @@ def test_hardening_setting_reaches_the_core_and_survives_verify(tmp_path):
         ({"hardening": 1.0}, r"hardening \(post-yield stiffness ratio α\) must be a number in \[0, 1\), got 1.0"),
     ],
 )
+
+
 def test_bad_yielding_settings_are_named(changes, match):
     """A reduction factor <= 0 or NaN names the oscillator; a hardening outside [0, 1) names the setting."""
     record = synthetic_record(1.0, 0.01, pga=0.2, seed=1)

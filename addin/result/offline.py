@@ -1,4 +1,4 @@
-"""The result workbook written with openpyxl, driven by ``layout.py``.
+"""The result workbook written with openpyxl, driven by the layout of ``sheets.py``.
 
 A workbook is always written new: openpyxl drops charts and pictures when it
 loads and saves a file, so a user's workbook is never loaded for writing.
@@ -9,18 +9,20 @@ place with ``os.replace``.
 from __future__ import annotations
 
 import os
-import tempfile
+from collections.abc import Sequence
 from pathlib import Path
-from typing import Any, Sequence
+from typing import Any
 
 from openpyxl import Workbook
 from openpyxl.chart import Reference, ScatterChart, Series
 from openpyxl.styles import Font
 from openpyxl.workbook.defined_name import DefinedName
 
+from groundstep.addin.common import write_atomically
+
 from . import layout as lay
-from .report import Report
-from .report_render import SeriesRange, column_letter, render
+from .content import Report
+from .render import SeriesRange, column_letter, render
 
 __all__ = ["OpenpyxlWriter", "write_report", "write_workbook_atomically"]
 
@@ -28,7 +30,7 @@ _BOLD = Font(bold=True)
 
 
 class OpenpyxlWriter:
-    """`report_render.SheetWriter` into a new openpyxl ``Workbook``."""
+    """`render.SheetWriter` into a new openpyxl ``Workbook``."""
 
     def __init__(self) -> None:
         self.book = Workbook()
@@ -89,7 +91,7 @@ def write_report(report: Report, path: str | os.PathLike[str], *, force: bool = 
     Parameters
     ----------
     report : Report
-        From ``report.build_report``.
+        From ``content.build_report``.
     path : path-like
         Output file; its folder must exist.
     force : bool, default False
@@ -111,18 +113,5 @@ def write_report(report: Report, path: str | os.PathLike[str], *, force: bool = 
 
 
 def write_workbook_atomically(book: Workbook, path: str | os.PathLike[str], *, force: bool = False) -> Path:
-    """Save `book` to a temporary file beside `path`, then move it into place."""
-    target = Path(path)
-    if target.exists() and not force:
-        raise FileExistsError(f"output {str(target)!r} exists; pass --force to replace it")
-    if not target.parent.is_dir():
-        raise FileNotFoundError(f"output folder {str(target.parent)!r} does not exist")
-    handle, temporary = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=target.parent)
-    os.close(handle)
-    try:
-        book.save(temporary)
-        os.replace(temporary, target)
-    finally:
-        if os.path.exists(temporary):
-            os.remove(temporary)
-    return target
+    """Save `book` to a temporary file beside `path`, then move it into place (``common.write_atomically``)."""
+    return write_atomically(path, book.save, force=force)

@@ -1,4 +1,4 @@
-"""``groundstep spectrum``: many record files, parallel worker processes, a progress display.
+"""The jobs of ``groundstep spectrum``: many record files, parallel worker processes, a progress display.
 
 Each job reads one text/CSV record (``Record.from_text``), computes its
 elastic spectra and writes CSV, JSON or a result workbook. Jobs run in
@@ -11,16 +11,13 @@ from __future__ import annotations
 import csv
 import io
 import json
-import os
 import sys
-import tempfile
-import warnings
+from collections.abc import Sequence
 from concurrent.futures import ProcessPoolExecutor, as_completed
 from pathlib import Path
-from typing import Sequence
 
-from . import layout as lay
-from .report import ReportSettings
+from groundstep.addin.common import CAUTION, write_atomically
+from groundstep.addin.result.content import ReportSettings
 
 __all__ = ["plan_outputs", "run_batch", "spectrum_job"]
 
@@ -51,13 +48,12 @@ def spectrum_job(
     source: Path, target: Path, settings: ReportSettings, dt: float | None, unit: str, time_column: bool | None, command: str
 ) -> str:
     """Read one record, compute, write `target`; return a one-line summary."""
-    from groundstep.core import Record, elastic_spectrum
+    from groundstep.addin.result.content import build_report, spectrum_table
+    from groundstep.addin.result.offline import write_report
+    from groundstep.core import Record, collect_warnings, elastic_spectrum
+    from groundstep.core.units import output_units
 
-    from .report import build_report, spectrum_table
-    from .workbook import write_report
-
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")
+    with collect_warnings():
         record = Record.from_text(source, dt, unit, time_column=time_column)
         if target.suffix == ".xlsx":
             report = build_report(record, settings, command=command, source=source.name)
@@ -67,7 +63,8 @@ def spectrum_job(
         spectrum = elastic_spectrum(
             record, settings.periods, settings.dampings, settings.method, max_step_ratio=settings.max_step_ratio
         )
-    table = spectrum_table(record, spectrum)
+    out = output_units(record.unit)
+    table = spectrum_table(spectrum, out)
     if target.suffix == ".json":
         text = json.dumps(
             {
@@ -76,15 +73,15 @@ def spectrum_job(
                 "dt": record.dt,
                 "samples": record.n,
                 "sha256": record.sha256(),
-                "method": spectrum.method,
-                "beta": None if spectrum.method == "exact" else spectrum.beta,
-                "gamma": None if spectrum.method == "exact" else spectrum.gamma,
+                "method": spectrum.method.name,
+                "beta": spectrum.method.beta if spectrum.method.is_newmark else None,
+                "gamma": spectrum.method.gamma if spectrum.method.is_newmark else None,
                 "max_step_ratio": settings.max_step_ratio,
                 "units": table["units"],
                 "periods": table["periods"],
                 "dampings": table["dampings"],
                 **{q: table[q] for q in ("sd", "psv", "psa", "sa")},
-                "caution": lay.CAUTION,
+                "caution": CAUTION,
             },
             indent=1,
         )
@@ -103,7 +100,7 @@ def spectrum_job(
         text = buffer.getvalue()
     _write_text_atomically(target, text)
     best = max(max(row) for row in table["psa"])
-    return f"PGA {record.pga / _factor(record.unit):.4g} {record.unit}, largest PSA {best:.4g} {record.unit}"
+    return f"PGA {out.acceleration_from_si(record.pga):.4g} {out.acceleration}, largest PSA {best:.4g} {out.acceleration}"
 
 
 def run_batch(
@@ -153,21 +150,11 @@ def _one_thread() -> None:
     numba.set_num_threads(1)
 
 
-def _factor(unit: str) -> float:
-    from groundstep.core._units import ACCELERATION_UNITS
-
-    return ACCELERATION_UNITS[unit]
-
-
 def _write_text_atomically(target: Path, text: str) -> None:
-    handle, temporary = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=target.parent)
-    try:
-        with os.fdopen(handle, "w", encoding="utf-8", newline="") as stream:
-            stream.write(text)
-        os.replace(temporary, target)
-    finally:
-        if os.path.exists(temporary):
-            os.remove(temporary)
+    def write(path: Path) -> None:
+        path.write_text(text, encoding="utf-8", newline="")
+
+    write_atomically(target, write, force=True)
 
 
 class _Progress:

@@ -1,16 +1,17 @@
 """Walk the layout and hand every cell, name and chart to a writer.
 
 The writer interface (`SheetWriter`) is small on purpose so that three
-implementations stay simple: ``workbook.OpenpyxlWriter`` (a file),
+implementations stay simple: ``offline.OpenpyxlWriter`` (a file),
 ``live.XlwingsWriter`` (the open workbook in Excel) and `CellRecorder` (a
 dictionary, used by ``verify`` and by tests).
 """
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 from types import SimpleNamespace
-from typing import Any, Protocol, Sequence
+from typing import Any, Protocol
 
 from . import layout as lay
 
@@ -110,7 +111,7 @@ def render_block(sheet: lay.Sheet, block, values: dict[str, Any], writer: SheetW
             continue
         if isinstance(block, lay.FormulaTable):
             letters = {c.key: column_letter(block.column + i) for i, c in enumerate(block.columns)}
-            offset = lay.RECORD_FIRST_ROW - first if block.source else 0
+            offset = addresses[_FIRST_ROWS][block.source] - first if block.source else 0
             cells = []
             for row in range(first, first + block.rows):
                 template = column.first if row == first else column.step
@@ -131,9 +132,13 @@ def block_cells(sheet: lay.Sheet, block) -> list[tuple[int, int]]:
     return [(r, block.column + c) for c in range(len(block.columns)) for r in range(first, first + block.rows)]
 
 
+#: Key of `formula_fields`' entry that maps each table to its first data row (not a formula field).
+_FIRST_ROWS = "__first_rows__"
+
+
 def formula_fields(workbook: lay.WorkbookLayout) -> dict[str, Any]:
     """Formula placeholders: field key -> ``$B$5``; table key -> namespace of column ranges."""
-    addresses: dict[str, Any] = {}
+    addresses: dict[str, Any] = {_FIRST_ROWS: {}}
     for sheet in workbook.sheets:
         for block in sheet.blocks:
             if isinstance(block, lay.Fields):
@@ -145,6 +150,7 @@ def formula_fields(workbook: lay.WorkbookLayout) -> dict[str, Any]:
                     c.key: _column_range(sheet.name, block, c.key).address().split("!", 1)[1] for c in block.columns
                 }
                 addresses[block.key] = SimpleNamespace(**ranges)
+                addresses[_FIRST_ROWS][block.key] = block.row + 2
     return addresses
 
 

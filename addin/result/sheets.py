@@ -1,187 +1,46 @@
-"""The one layout description of the result workbook (data only).
+"""The result workbook itself: its sheets, blocks, names and charts, described with ``layout.py``.
 
-Sheets, blocks, columns, named cells, number formats, formulas and charts
-are described here as frozen dataclasses. Both writers (``workbook.py`` with
-openpyxl, ``live.py`` with xlwings) and the checker (``verify.py``) walk the
-same description through ``report_render.render``; nothing here imports a
-spreadsheet library or computes a result.
-
-Positions are 1-based (row, column). Every field value cell and every table
-data column gets a workbook-level defined name ``NAME_PREFIX + key``.
-
-Formula templates use ``str.format`` fields: ``{r}`` this row, ``{q}`` the
-row above, ``{rr}`` the matching row of the source table, a column key of the
-same table (its column letter), a field key of any sheet (its absolute
-address without sheet name, e.g. ``$B$5``), or ``{TABLE.COLUMN}`` (the
-absolute range of a table column's data, e.g. ``$J$9:$J$2009``).
+`result_layout` returns the description for given sizes and units; the
+content (``content.py``) fills it, the writers (``offline.py``, ``live.py``)
+and ``verify.py`` walk it.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from groundstep.addin.common import CAUTION
+
+from .layout import (
+    FIXED3,
+    FIXED4,
+    GENERAL,
+    INTEGER,
+    SCIENTIFIC,
+    TEXT,
+    Chart,
+    Column,
+    Field,
+    Fields,
+    FormulaColumn,
+    FormulaTable,
+    Sheet,
+    Table,
+    WorkbookLayout,
+)
 
 __all__ = [
-    "CAUTION",
-    "FORMAT_ID",
-    "NAME_PREFIX",
-    "Chart",
-    "Column",
-    "Field",
-    "Fields",
-    "FormulaColumn",
-    "FormulaTable",
-    "Sheet",
-    "Table",
-    "WorkbookLayout",
+    "AUDIT",
+    "PEAKS",
+    "RECORD",
+    "RECORD_FIRST_ROW",
+    "SPECTRA",
+    "SUMMARY",
+    "VERIFICATION",
+    "VERIFY_TOLERANCE",
+    "YIELDING_TITLE",
+    "damping_label",
     "result_layout",
 ]
 
-#: Shown on the Summary sheet, the Audit sheet and by the command line (project rule 5).
-CAUTION = "Results support, not replace, engineering judgement; local codes and licensed practice govern."
-#: Stored on the Audit sheet; ``verify`` reads a workbook only when it finds this.
-FORMAT_ID = "groundstep-result-workbook/1"
-#: Prefix of every defined name the result workbook carries.
-NAME_PREFIX = "gs_"
-
-# number formats (spreadsheet format codes, understood by Excel and LibreOffice)
-GENERAL = "General"
-TEXT = "@"
-FIXED3 = "0.000"
-FIXED4 = "0.0000"
-SCIENTIFIC = "0.00000E+00"
-INTEGER = "0"
-
-
-@dataclass(frozen=True, slots=True)
-class Field:
-    """One labelled value: label in the block's first column, value beside it, unit after."""
-
-    key: str
-    label: str
-    unit: str = ""
-    number_format: str = GENERAL
-
-
-@dataclass(frozen=True, slots=True)
-class Fields:
-    """A vertical list of fields under a bold title.
-
-    `checked` blocks hold results that ``verify`` recomputes; `formulas`
-    maps a field key to a formula template written instead of a value.
-    """
-
-    key: str
-    title: str
-    row: int
-    column: int
-    fields: tuple[Field, ...]
-    checked: bool = False
-    formulas: tuple[tuple[str, str], ...] = ()
-
-
-@dataclass(frozen=True, slots=True)
-class Column:
-    """One column of a value table. The header shows ``header [unit]``."""
-
-    key: str
-    header: str
-    unit: str = ""
-    number_format: str = GENERAL
-    width: float = 14.0
-
-
-@dataclass(frozen=True, slots=True)
-class Table:
-    """A table of values: title row, header row, then `rows` data rows."""
-
-    key: str
-    title: str
-    row: int
-    column: int
-    columns: tuple[Column, ...]
-    rows: int
-    checked: bool = False
-
-
-@dataclass(frozen=True, slots=True)
-class FormulaColumn:
-    """A column of formulas: `first` in the first data row, `step` below it."""
-
-    key: str
-    header: str
-    first: str
-    step: str
-    unit: str = ""
-    number_format: str = GENERAL
-    width: float = 14.0
-
-
-@dataclass(frozen=True, slots=True)
-class FormulaTable:
-    """A table of formulas; ``{rr}`` refers to the same data row of table `source` on sheet `source_sheet`.
-
-    `checked`: ``verify`` compares every formula's text with the layout's.
-    """
-
-    key: str
-    title: str
-    row: int
-    column: int
-    columns: tuple[FormulaColumn, ...]
-    rows: int
-    source_sheet: str = ""
-    source: str = ""
-    checked: bool = True
-
-
-@dataclass(frozen=True, slots=True)
-class Chart:
-    """A native scatter chart (straight lines, no markers) of table columns.
-
-    Each entry of `series` is (y column key, series title); all share the
-    `x` column of `table`.
-    """
-
-    key: str
-    title: str
-    table: str
-    x: str
-    series: tuple[tuple[str, str], ...]
-    x_title: str
-    y_title: str
-    row: int
-    column: int
-    log_x: bool = False
-    width_cm: float = 16.0
-    height_cm: float = 8.5
-
-
-@dataclass(frozen=True, slots=True)
-class Sheet:
-    """One worksheet: title in A1, `note` in A2, its blocks in writing order and its charts."""
-
-    name: str
-    title: str
-    blocks: tuple[Fields | Table | FormulaTable, ...]
-    charts: tuple[Chart, ...] = ()
-    note: str = ""
-
-
-@dataclass(frozen=True, slots=True)
-class WorkbookLayout:
-    """All sheets, in order."""
-
-    sheets: tuple[Sheet, ...]
-
-    def sheet(self, name: str) -> Sheet:
-        """The sheet called `name` (KeyError naming the sheets otherwise)."""
-        for sheet in self.sheets:
-            if sheet.name == name:
-                return sheet
-        raise KeyError(f"no sheet {name!r}; the layout has {[s.name for s in self.sheets]}")
-
-
-# --- the result workbook -----------------------------------------------------------------------
 
 SUMMARY, RECORD, SPECTRA, PEAKS, VERIFICATION, AUDIT = "Summary", "Record", "Spectra", "Peaks", "Verification", "Audit"
 #: First data row of the Record table; the Verification steps start on the same row.

@@ -2,12 +2,12 @@
 
 An input workbook is only read, never written: the file's bytes are read
 into memory and openpyxl loads that copy. Cells are found through defined
-names (the calculation-package template, ``templates.INPUT_NAMES``) or through an
+names (the calculation-package template, ``names.INPUTS``) or through an
 explicit ``SHEET!RANGE`` for the record. Oscillators may carry a strength
 reduction factor R (``input_peak_reduction_factors`` or
 ``gs_in_oscillator_reduction_factors``, cell for cell beside the periods; a
 blank cell keeps that oscillator elastic only). Every cell is checked by the
-worksheet-function entrance (``_cells``), so messages are the same as in the
+worksheet-function entrance (``worksheet.cells``), so messages are the same as in the
 worksheet functions and name the range and row.
 """
 
@@ -16,39 +16,19 @@ from __future__ import annotations
 import io
 import os
 import re
+from collections.abc import Callable
 from pathlib import Path
-from typing import Any, Callable
+from typing import Any
 
+from groundstep.addin.result.content import PROJECT_KEYS, Oscillator, ReportSettings
+from groundstep.addin.worksheet import cells as _cells
 from groundstep.core import Record
-from groundstep.core._units import ACCELERATION_UNITS
+from groundstep.core.defaults import DEFAULT_DAMPING
+from groundstep.core.units import ACCELERATION_UNITS
 
-from . import _cells
-from .report import PROJECT_KEYS, Oscillator, ReportSettings
+from .names import lookup_names
 
-__all__ = ["INPUT_NAMES", "InputError", "read_input_workbook", "settings_from_cells", "split_reference"]
-
-#: Defined names looked up in an input workbook, first found wins. The
-#: calculation-package template's names come first; ``gs_in_*`` names may be
-#: added to any workbook by hand.
-INPUT_NAMES: dict[str, tuple[str, ...]] = {
-    "record": ("input_record", "gs_in_record"),
-    "dt": ("input_dt", "gs_in_dt"),
-    "unit": ("input_unit", "gs_in_unit"),
-    "record_name": ("input_record_name", "gs_in_record_name"),
-    "periods": ("input_periods", "gs_in_periods"),
-    "dampings": ("input_dampings", "gs_in_dampings"),
-    "method": ("input_method", "gs_in_method"),
-    "oscillator_periods": ("input_peak_periods", "gs_in_oscillator_periods"),
-    "oscillator_dampings": ("input_peak_dampings", "gs_in_oscillator_dampings"),
-    "oscillator_reduction_factors": ("input_peak_reduction_factors", "gs_in_oscillator_reduction_factors"),
-    "oscillator_labels": ("gs_in_oscillator_labels",),
-    "hardening": ("gs_in_hardening",),
-    "project": ("input_project", "gs_in_project"),
-    "site": ("input_site", "gs_in_site"),
-    "structure": ("gs_in_structure",),
-    "engineer": ("input_engineer", "gs_in_engineer"),
-    "scenario": ("gs_in_scenario",),
-}
+__all__ = ["InputError", "read_input_workbook", "settings_from_cells", "split_reference"]
 
 _REFERENCE = re.compile(r"^(?:'((?:[^']|'')+)'|([^!]+))!(\$?[A-Za-z]{1,3}\$?\d+(?::\$?[A-Za-z]{1,3}\$?\d+)?)$")
 
@@ -88,7 +68,7 @@ def settings_from_cells(
     Parameters
     ----------
     get : callable
-        ``get(key)`` returns the cells of input `key` (see `INPUT_NAMES`)
+        ``get(key)`` returns the cells of input `key` (see ``names.INPUTS``)
         as a spreadsheet passes them, or None when the workbook lacks it.
     record_values, dt, unit
         Override the workbook's record range, time step [s] and unit.
@@ -127,7 +107,9 @@ def settings_from_cells(
     if osc_periods is not None:
         found = _cells.periods(osc_periods, "the oscillator periods")
         ratios = (
-            _cells.dampings(osc_dampings, "the oscillator dampings") if osc_dampings is not None else [0.05] * len(found)
+            _cells.dampings(osc_dampings, "the oscillator dampings")
+            if osc_dampings is not None
+            else [DEFAULT_DAMPING] * len(found)
         )
         if len(ratios) != len(found):
             raise InputError(f"{len(found)} oscillator periods but {len(ratios)} dampings")
@@ -217,7 +199,7 @@ def read_input_workbook(
         return [[cell.value for cell in row] for row in found]
 
     def get(key: str) -> Any:
-        for name in INPUT_NAMES[key]:
+        for name in lookup_names(key):
             defined = book.defined_names.get(name)
             if defined is None:
                 for sheet in book.worksheets:  # names scoped to a sheet
@@ -226,6 +208,7 @@ def read_input_workbook(
                         break
             if defined is not None:
                 sheet_name, reference = next(iter(defined.destinations))
+                sheet_name = sheet_name.replace("''", "'")  # openpyxl keeps the doubled quotes of 'O''Brien'
                 return cells(sheet_name, reference.replace("$", ""))
         return None
 
@@ -249,8 +232,8 @@ def _reduction_factors(factors: Any, periods: Any, count: int) -> list[float | N
     if factors is None:
         return [None] * count
     what = "the oscillator reduction factors"
-    start = _first_number(_cells._line(periods, "the oscillator periods").cells)
-    cells = _cells._line(factors, what).cells
+    start = _first_number(_cells.line(periods, "the oscillator periods"))
+    cells = _cells.line(factors, what)
     found: list[float | None] = []
     for index in range(start, start + count):
         cell = cells[index] if index < len(cells) else None
@@ -278,7 +261,7 @@ def _first_number(cells: list[Any]) -> int:
 def _labels(labels: Any, count: int) -> list[str]:
     if labels is None:
         return [f"Oscillator {i}" for i in range(1, count + 1)]
-    cells = [cell for _, cell in _cells._line(labels, "the oscillator labels")]
+    cells = _cells.line(labels, "the oscillator labels")
     texts = ["" if c is None else str(c).strip() for c in cells]
     while texts and not texts[-1]:
         texts.pop()

@@ -24,7 +24,7 @@ from typing import Any, NamedTuple
 import numpy as np
 from numpy.typing import NDArray
 
-from groundstep.core._units import normalise_unit
+from groundstep.core.units import normalise_unit
 
 #: The error values a spreadsheet cell can hold, as Excel spells them.
 EXCEL_ERRORS = frozenset(
@@ -174,6 +174,17 @@ def flag(value: Any, what: str, default: bool) -> bool:
     if isinstance(cell, str) and cell.strip().lower() in {"true", "false", "yes", "no"}:
         return cell.strip().lower() in {"true", "yes"}
     raise CellError(f"{what} must be TRUE or FALSE, got {_shown(cell)}")
+
+
+def line(value: Any, what: str) -> list[Any]:
+    """The cells of a scalar, a flat list, or a one-column or one-row range, in order.
+
+    Raises
+    ------
+    CellError
+        A range of several rows and several columns.
+    """
+    return _line(value, what).cells
 
 
 def method(value: Any, what: str, default: str) -> str | tuple[float, float]:

@@ -4,7 +4,7 @@ The record, its unit and time step, the spectrum periods and dampings, the
 method, the oscillators (with their reduction factors R from the Peaks
 sheet's elastic table, blank for elastic only) and the hardening ratio of the
 yielding oscillators are read back through the workbook's defined names;
-``report.build_report`` recomputes the content, ``report_render`` lays it
+``content.build_report`` recomputes the content, ``render`` lays it
 out in memory with the same layout, and every cell of every checked block
 (the yielding table and the Summary's yielding line among them) is
 compared with the stored one (numbers to a relative tolerance, text and
@@ -16,16 +16,18 @@ from __future__ import annotations
 
 import math
 import os
-import warnings
 import zipfile
 from dataclasses import dataclass
 from typing import Any
 
-from groundstep.core import Record
+import numpy as np
+
+from groundstep.core import Record, collect_warnings
 
 from . import layout as lay
-from .report import PROJECT_KEYS, Oscillator, ReportSettings, build_report
-from .report_render import CellRecorder, block_cells, column_letter, formula_fields, render_block
+from . import sheets
+from .content import PROJECT_KEYS, Oscillator, ReportSettings, build_report
+from .render import CellRecorder, block_cells, column_letter, formula_fields, render_block
 
 __all__ = ["BlockCheck", "NotAResultWorkbook", "RELATIVE_TOLERANCE", "verify_workbook"]
 
@@ -92,9 +94,8 @@ def verify_workbook(path: str | os.PathLike[str]) -> list[BlockCheck]:
             f"cell holding {lay.FORMAT_ID!r}; found {mark!r})"
         )
     record, settings, audit = _read_inputs(reader)
-    checks = [_check_digest(record, audit["record_sha256"])]
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")
+    checks: list[BlockCheck | None] = [_check_digest(record, audit["record_sha256"])]
+    with collect_warnings():
         report = build_report(record, settings, command=audit["command"], source=audit["record_source"])
     addresses = formula_fields(report.layout)
     for sheet in report.layout.sheets:
@@ -119,6 +120,7 @@ class _Names:
         if defined is None:
             return None
         sheet, reference = next(iter(defined.destinations))
+        sheet = sheet.replace("''", "'")  # openpyxl keeps the doubled quotes of 'O''Brien'
         if sheet not in self.book.sheetnames:
             raise NotAResultWorkbook(f"name {lay.NAME_PREFIX}{key} points to a missing sheet {sheet!r}")
         return self.book[sheet], reference.replace("$", ""), sheet
@@ -158,7 +160,7 @@ class _Names:
 def _read_inputs(names: _Names) -> tuple[Record, ReportSettings, dict[str, str]]:
     unit = names.value("record_unit")
     try:
-        record = Record(names.numbers("record_table_accel"), names.number("dt"), unit, name=names.value("record_name") or "")
+        record = Record(np.asarray(names.numbers("record_table_accel")), names.number("dt"), unit, name=names.value("record_name") or "")
     except (TypeError, ValueError) as exc:
         raise NotAResultWorkbook(f"the stored record cannot be read: {exc}") from None
     method: Any = names.value("method")
@@ -218,7 +220,7 @@ def _check_digest(record: Record, stored: str) -> BlockCheck:
         if ok
         else f"SHA-256 of the stored samples is {digest[:16]}..., the Audit sheet says {stored[:16] or '(blank)'}..."
     )
-    return BlockCheck(lay.RECORD, "record_sha256", "record digest", ok, record.n, message)
+    return BlockCheck(sheets.RECORD, "record_sha256", "record digest", ok, record.n, message)
 
 
 def _compare(book, sheet: lay.Sheet, block, recorder: CellRecorder) -> BlockCheck:
@@ -227,7 +229,8 @@ def _compare(book, sheet: lay.Sheet, block, recorder: CellRecorder) -> BlockChec
         return BlockCheck(sheet.name, block.key, title, False, 0, f"sheet {sheet.name!r} is missing")
     stored_sheet = book[sheet.name]
     positions = block_cells(sheet, block)
-    scale = max((abs(v) for p in positions if _is_number(v := recorder.cells.get((sheet.name, *p)))), default=0.0)
+    stored_values = [recorder.cells.get((sheet.name, *p)) for p in positions]
+    scale = max((abs(float(v)) for v in stored_values if isinstance(v, (int, float))), default=0.0)
     bad: list[str] = []
     for row, column in positions:
         expected = recorder.cells.get((sheet.name, row, column))
@@ -266,12 +269,12 @@ def _spreadsheet_result(path) -> BlockCheck | None:
     status = names.value("verification_overall", required=False)
     if status is None:
         return BlockCheck(
-            lay.VERIFICATION, "verification_overall", "formula replay", True, 0,
+            sheets.VERIFICATION, "verification_overall", "formula replay", True, 0,
             "formulas not yet calculated in this file (open it in a spreadsheet to see pass/fail)",
         )  # fmt: skip
     ok = status == "pass"
     return BlockCheck(
-        lay.VERIFICATION, "verification_overall", "formula replay", ok, 1,
+        sheets.VERIFICATION, "verification_overall", "formula replay", ok, 1,
         f"the spreadsheet's last calculation says {status!r}",
     )  # fmt: skip
 

@@ -1,0 +1,130 @@
+"""What every command shares: exit codes, the usage error, settings options, output checks, the headline."""
+
+from __future__ import annotations
+
+import argparse
+from collections.abc import Sequence
+from dataclasses import replace
+from pathlib import Path
+from typing import Any
+
+from groundstep.addin.common import CAUTION
+from groundstep.addin.result.content import Oscillator, ReportSettings
+from groundstep.core import period_grid
+from groundstep.core.defaults import DEFAULT_DAMPING
+
+__all__ = [
+    "EXIT_INPUT",
+    "EXIT_INTERNAL",
+    "EXIT_MISMATCH",
+    "EXIT_OK",
+    "UsageError",
+    "add_settings",
+    "floats",
+    "print_headline",
+    "refuse_existing",
+    "settings_from_options",
+]
+
+EXIT_OK, EXIT_MISMATCH, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
+
+
+class UsageError(ValueError):
+    """A bad option combination, reported as an input error."""
+
+
+def add_settings(p: argparse.ArgumentParser) -> None:
+    g = p.add_argument_group("spectrum settings")
+    g.add_argument("--periods", metavar="SHORTEST,LONGEST,COUNT", default=None,
+                   help="log-spaced spectrum periods [s] (default 0.02,10,80)")  # fmt: skip
+    g.add_argument("--dampings", metavar="LIST", default=None, help="damping ratios, e.g. 0.02,0.05,0.1 (default)")
+    g.add_argument("--method", default=None, metavar="NAME",
+                   help="average (default), linear, exact, or BETA,GAMMA")  # fmt: skip
+    g.add_argument("--max-step-ratio", type=float, default=None, metavar="RATIO",
+                   help="largest h/T before a step is sub-divided (default 0.1)")  # fmt: skip
+    if p.prog.split()[-1] != "spectrum":  # the workbook commands add oscillators
+        g.add_argument("--oscillator", action="append", default=None, metavar="LABEL:PERIOD[:DAMPING[:R]]",
+                       help="an oscillator for the Peaks sheet (repeatable); with a strength reduction factor R "
+                            "it also appears in the yielding table (damping default 0.05)")  # fmt: skip
+        g.add_argument("--hardening", type=float, default=None, metavar="ALPHA",
+                       help="post-yield stiffness ratio of the yielding oscillators, in [0, 1) (default 0: elastoplastic)")  # fmt: skip
+        g.add_argument("--verification-period", type=float, default=None, metavar="SECONDS",
+                       help="period of the Verification sheet's oscillator (h/T <= 0.1)")  # fmt: skip
+
+
+def settings_from_options(args: argparse.Namespace, base: ReportSettings | None = None) -> ReportSettings:
+    """ReportSettings from the options, on top of `base`."""
+    base = base or ReportSettings()
+    changes: dict[str, Any] = {}
+    if args.periods:
+        parts = floats(args.periods, "--periods")
+        if len(parts) != 3 or parts[2] != int(parts[2]):
+            raise UsageError(f"--periods {args.periods!r}: give SHORTEST,LONGEST,COUNT, e.g. 0.02,10,80")
+        changes["periods"] = tuple(float(p) for p in period_grid(parts[0], parts[1], int(parts[2])))
+    if args.dampings:
+        changes["dampings"] = tuple(floats(args.dampings, "--dampings"))
+    if args.method:
+        changes["method"] = tuple(floats(args.method, "--method")) if "," in args.method else args.method
+    if args.max_step_ratio is not None:
+        changes["max_step_ratio"] = args.max_step_ratio
+    if getattr(args, "oscillator", None):
+        oscillators = []
+        for text in args.oscillator:
+            label, *numbers = text.split(":")
+            if any(not part.strip() for part in numbers[:2]):  # LABEL:PERIOD::R is not allowed: say the damping
+                numbers = []
+            values = floats(",".join(numbers), "--oscillator")
+            if not label.strip() or len(values) not in (1, 2, 3) or len(numbers) != len(values):
+                raise UsageError(
+                    f"--oscillator {text!r}: give LABEL:PERIOD, LABEL:PERIOD:DAMPING or LABEL:PERIOD:DAMPING:R"
+                )
+            if len(values) == 3 and not values[2] > 0.0:
+                raise UsageError(f"--oscillator {text!r}: the reduction factor R must be > 0, got {values[2]:g}")
+            damping = values[1] if len(values) >= 2 else DEFAULT_DAMPING
+            oscillators.append(Oscillator(label.strip(), values[0], damping, values[2] if len(values) == 3 else None))
+        changes["oscillators"] = tuple(oscillators)
+    if getattr(args, "hardening", None) is not None:
+        if not 0.0 <= args.hardening < 1.0:
+            raise UsageError(f"--hardening {args.hardening:g}: give a post-yield stiffness ratio in [0, 1)")
+        changes["hardening"] = args.hardening
+    if getattr(args, "verification_period", None) is not None:
+        changes["verification_period"] = args.verification_period
+    return replace(base, **changes)
+
+
+def floats(text: str, option: str) -> list[float]:
+    try:
+        return [float(part) for part in text.split(",") if part.strip()]
+    except ValueError:
+        raise UsageError(f"{option} {text!r}: expected comma-separated numbers") from None
+
+
+def refuse_existing(paths: Sequence[Path], force: bool) -> None:
+    if force:
+        return
+    existing = [str(p) for p in paths if p.exists()]
+    if existing:
+        more = f" (and {len(existing) - 1} more)" if len(existing) > 1 else ""
+        raise FileExistsError(f"output {existing[0]!r}{more} exists; pass --force to replace it")
+
+
+def print_headline(out: Path, report: Any, seconds: float) -> None:
+    h = report.headline
+    s = report.content["record_summary"]
+    print(f"wrote {out} in {seconds:.1f} s")
+    print(f"  record: {s['record_name']}, {s['samples']} samples, {s['duration']:.2f} s, PGA {h['pga']:.4g} {h['unit']}")
+    print(f"  significant duration (5-95 % Arias): {h['significant_duration']:.2f} s")
+    print(
+        f"  largest PSA: {h['peak_psa']:.4g} {h['unit']} at T = {h['peak_psa_period']:.3g} s "
+        f"(damping {h['peak_psa_damping']:g})"
+    )
+    if "largest_ductility" in h:
+        print(
+            f"  largest ductility demand: {h['largest_ductility']:.3g} ({h['largest_ductility_label']}, "
+            f"R = {h['largest_ductility_reduction_factor']:g}; yielding table on the Peaks sheet)"
+        )
+    print(
+        f"  Verification sheet: T = {h['verification_period']:g} s, damping {h['verification_damping']:g}, "
+        "every step written as formulas (open in a spreadsheet; check with 'groundstep verify')"
+    )
+    print(f"  {CAUTION}")

@@ -1,0 +1,1 @@
+"""The calculation-package template and reading input workbooks made from it."""

@@ -1,0 +1,1 @@
+"""The result workbook: layout classes, the concrete layout, content, renderer, writers, verify."""

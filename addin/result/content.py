@@ -1,0 +1,489 @@
+"""Content of the result workbook: settings in, every value the layout shows out.
+
+`build_report` calls the ``groundstep.core`` API and returns the layout
+(``sheets.result_layout``) with the values for each of its blocks, one small
+function per block. The openpyxl writer, the xlwings writer and ``verify``
+all use it, so a workbook and its re-check are computed the same way.
+"""
+
+from __future__ import annotations
+
+import math
+import platform
+import sys
+from dataclasses import dataclass, field
+from datetime import datetime, timezone
+from typing import Any
+
+import numpy as np
+
+from groundstep.addin.common import CAUTION
+from groundstep.core import (
+    ElasticSpectrum,
+    InelasticResponse,
+    LinearResponse,
+    Record,
+    __version__,
+    collect_warnings,
+    elastic_spectrum,
+    inelastic_response,
+    linear_response,
+)
+from groundstep.core.defaults import (
+    DEFAULT_DAMPING,
+    DEFAULT_DAMPINGS,
+    DEFAULT_STEP_RATIO,
+    DEFAULT_TOLERANCE,
+    default_periods,
+)
+from groundstep.core.measures import arias_intensity, normalised_arias, significant_duration
+from groundstep.core.methods import Method, resolve_method
+from groundstep.core.units import ACCELERATION_UNITS, OutputUnits, output_units
+
+from . import sheets
+from .layout import FORMAT_ID, WorkbookLayout
+
+__all__ = [
+    "PROJECT_KEYS",
+    "Oscillator",
+    "Report",
+    "ReportSettings",
+    "build_report",
+    "spectrum_table",
+    "stored_record",
+    "yielding_method",
+]
+
+#: Largest h/T the Verification oscillator may have: at or below the default
+#: sub-stepping limit, so the sheet replays exactly the steps groundstep takes.
+_VERIFY_STEP_RATIO = DEFAULT_STEP_RATIO
+#: Keys of the Summary sheet's project block, in order.
+PROJECT_KEYS = ("project", "site", "structure", "engineer", "scenario")
+
+
+def _default_periods() -> tuple[float, ...]:
+    return tuple(float(p) for p in default_periods())
+
+
+@dataclass(frozen=True, slots=True)
+class Oscillator:
+    """One of the engineer's oscillators: a label, period [s], damping ratio and optional strength.
+
+    `reduction_factor` R = (peak elastic force) / fy [-], > 0: when given,
+    the oscillator also appears in the Peaks sheet's yielding table
+    (``groundstep.core.inelastic_response``); ``None`` keeps it elastic only.
+    """
+
+    label: str
+    period: float
+    damping: float = DEFAULT_DAMPING
+    reduction_factor: float | None = None
+
+
+@dataclass(frozen=True, slots=True)
+class ReportSettings:
+    """What to compute for a result workbook.
+
+    Attributes
+    ----------
+    periods : tuple of float
+        Spectrum periods [s], > 0.
+    dampings : tuple of float
+        Spectrum damping ratios.
+    method : str or (beta, gamma)
+        As in ``groundstep.core.elastic_spectrum``.
+    max_step_ratio : float or None
+        As in ``groundstep.core.elastic_spectrum``.
+    oscillators : tuple of Oscillator
+        The Peaks sheet's oscillators.
+    verification_period, verification_damping : float or None, float
+        The Verification sheet's oscillator; ``None`` picks the first
+        oscillator with h/T <= 0.1, else 1 s (or 10·h if that is longer).
+    project : tuple of (key, text)
+        Summary fields (keys ``project``, ``site``, ``structure``,
+        ``engineer``, ``scenario``).
+    hardening : float
+        Post-yield stiffness ratio α of the yielding oscillators, in [0, 1);
+        0 (the default) is elastoplastic.
+    """
+
+    periods: tuple[float, ...] = field(default_factory=_default_periods)
+    dampings: tuple[float, ...] = DEFAULT_DAMPINGS
+    method: Any = "average"
+    max_step_ratio: float | None = DEFAULT_STEP_RATIO
+    oscillators: tuple[Oscillator, ...] = ()
+    verification_period: float | None = None
+    verification_damping: float = DEFAULT_DAMPING
+    project: tuple[tuple[str, str], ...] = ()
+    hardening: float = 0.0
+
+
+@dataclass(frozen=True, slots=True)
+class Report:
+    """A layout and the values of its blocks (``content[block key][field or column key]``)."""
+
+    layout: WorkbookLayout
+    content: dict[str, dict[str, Any]]
+    headline: dict[str, Any]
+
+
+def build_report(
+    record: Record,
+    settings: ReportSettings,
+    *,
+    command: str = "",
+    source: str = "",
+    created: str | None = None,
+) -> Report:
+    """Compute every value of the result workbook for `record`.
+
+    Parameters
+    ----------
+    record : Record
+        The ground acceleration.
+    settings : ReportSettings
+    command : str
+        The command line that made the workbook (Audit sheet).
+    source : str
+        Where the record came from (Audit sheet).
+    created : str, optional
+        ISO time stamp; now (UTC) by default.
+
+    Returns
+    -------
+    Report
+
+    Raises
+    ------
+    ValueError
+        A Verification oscillator whose h/T exceeds 0.1, a reduction factor
+        that is not a number > 0 (naming the oscillator), bad periods,
+        dampings, hardening or method (message from the core API).
+    ConvergenceError
+        A yielding oscillator's step did not converge (from
+        ``inelastic_response``; the message names the time).
+    """
+    method = resolve_method(settings.method)
+    record = stored_record(record)
+    out = output_units(record.unit)
+    project = _project(settings)
+    # sub-steps are shown per oscillator on the Peaks sheet; a yielding result is always converged
+    with collect_warnings():
+        spectrum = elastic_spectrum(record, settings.periods, settings.dampings, method,
+                                    max_step_ratio=settings.max_step_ratio)  # fmt: skip
+        peaks = [
+            linear_response(record, o.period, o.damping, method, max_step_ratio=settings.max_step_ratio)
+            for o in settings.oscillators
+        ]
+        yielding_oscillators, yielding = _yielding_responses(record, settings, method)
+    verification = _verification_oscillator(record, settings, method)
+    layout = sheets.result_layout(
+        record.n, spectrum.periods.size, tuple(float(d) for d in spectrum.dampings), len(peaks),
+        out.acceleration, out.length, len(yielding),
+    )  # fmt: skip
+    table = spectrum_table(spectrum, out)
+    content: dict[str, dict[str, Any]] = {
+        "project": {key: project.get(key, "") for key in PROJECT_KEYS},
+        "record_summary": _record_summary(record, out),
+        "key_results": _key_results(spectrum, table),
+        "check": {},
+        "record": {"record_unit": record.unit, "dt": record.dt, "unit_factor": ACCELERATION_UNITS[record.unit]},
+        "record_table": {
+            "time": record.time.tolist(),
+            "accel": record.accel_in(record.unit).tolist(),
+            "arias": normalised_arias(record).tolist(),
+        },
+        "spectra_table": _spectra_columns(table),
+        "peaks_table": _peaks_table(settings.oscillators, peaks, out),
+        "yielding_table": _yielding_table(yielding_oscillators, yielding, out, settings.hardening, method),
+        **_verification_blocks(record, *verification),
+        "audit": _audit(record, command, source, created),
+        "settings": _settings_block(settings, spectrum, method),
+    }
+    if yielding:
+        content["yielding_summary"] = _yielding_summary(yielding_oscillators, yielding, out)
+    return Report(layout, content, _headline(record, spectrum, out, content, verification))
+
+
+def _project(settings: ReportSettings) -> dict[str, str]:
+    project = dict(settings.project)
+    unknown = set(project) - set(PROJECT_KEYS)
+    if unknown:
+        raise ValueError(f"`project` keys must be among {PROJECT_KEYS}, got {sorted(unknown)}")
+    return project
+
+
+def _record_summary(record: Record, out: OutputUnits) -> dict[str, Any]:
+    return {
+        "record_name": record.name or "(unnamed)",
+        "samples": record.n,
+        "duration": record.duration,
+        "pga": out.acceleration_from_si(record.pga),
+        "pgv": out.velocity_from_si(float(np.max(np.abs(record.ground_velocity())))),
+        "pgd": out.length_from_si(float(np.max(np.abs(record.ground_displacement())))),
+        "arias": float(arias_intensity(record)[-1]),
+        "significant_duration": significant_duration(record),
+    }
+
+
+def _spectra_columns(table: dict[str, Any]) -> dict[str, Any]:
+    columns: dict[str, Any] = {"period": table["periods"]}
+    for i in range(len(table["dampings"])):
+        for quantity in ("sd", "psv", "psa", "sa"):
+            columns[f"{quantity}_{i}"] = table[quantity][i]
+    return columns
+
+
+def _key_results(spectrum: ElasticSpectrum, table: dict[str, Any]) -> dict[str, list[float]]:
+    keys = ("damping", "peak_psa", "peak_psa_period", "peak_sd", "peak_sd_period")
+    found: dict[str, list[float]] = {k: [] for k in keys}
+    for i, damping in enumerate(table["dampings"]):
+        at_psa, at_sd = int(np.argmax(spectrum.psa[i])), int(np.argmax(spectrum.sd[i]))
+        found["damping"].append(damping)
+        found["peak_psa"].append(table["psa"][i][at_psa])
+        found["peak_psa_period"].append(table["periods"][at_psa])
+        found["peak_sd"].append(table["sd"][i][at_sd])
+        found["peak_sd_period"].append(table["periods"][at_sd])
+    return found
+
+
+def _peaks_table(oscillators: tuple[Oscillator, ...], peaks: list[LinearResponse], out: OutputUnits) -> dict[str, list[Any]]:
+    return {
+        "label": [o.label for o in oscillators],
+        "period": [float(o.period) for o in oscillators],
+        "damping": [float(o.damping) for o in oscillators],
+        "sd": [out.length_from_si(r.peak_displacement) for r in peaks],
+        "sv": [out.velocity_from_si(r.peak_velocity) for r in peaks],
+        "sa": [out.acceleration_from_si(r.peak_total_acceleration) for r in peaks],
+        "psv": [out.velocity_from_si(r.pseudo_velocity) for r in peaks],
+        "psa": [out.acceleration_from_si(r.pseudo_acceleration) for r in peaks],
+        "time_sd": [r.time_of_peak_displacement for r in peaks],
+        "time_sa": [r.time_of_peak_total_acceleration for r in peaks],
+        "substeps": [r.substeps for r in peaks],
+        "reduction_factor": [_reduction_factor(o) for o in oscillators],
+    }
+
+
+def _verification_blocks(record: Record, period: float, damping: float, beta: float, gamma: float) -> dict[str, dict[str, Any]]:
+    check = linear_response(record, period, damping, (beta, gamma), max_step_ratio=_VERIFY_STEP_RATIO)
+    return {
+        "verification_inputs": {
+            "verification_period": period,
+            "verification_damping": damping,
+            "verification_beta": beta,
+            "verification_gamma": gamma,
+            "verification_tolerance": sheets.VERIFY_TOLERANCE,
+        },
+        "verification_constants": {},
+        "verification_check": {
+            "python_u": check.peak_displacement,
+            "python_v": check.peak_velocity,
+            "python_t": check.peak_total_acceleration,
+        },
+        "verification_steps": {},
+    }
+
+
+def _audit(record: Record, command: str, source: str, created: str | None) -> dict[str, Any]:
+    return {
+        "format": FORMAT_ID,
+        "created": created or datetime.now(timezone.utc).isoformat(timespec="seconds"),
+        "command": command,
+        "groundstep_version": __version__,
+        "python_version": sys.version.split()[0],
+        "library_versions": _library_versions(),
+        "platform": platform.platform(),
+        "record_sha256": record.sha256(),
+        "record_source": source,
+        "caution": CAUTION,
+    }
+
+
+def _settings_block(settings: ReportSettings, spectrum: ElasticSpectrum, method: Method) -> dict[str, Any]:
+    periods = spectrum.periods
+    return {
+        "method": method.name,
+        "method_description": method.describe(),
+        "beta": None if not method.is_newmark else method.beta,
+        "gamma": None if not method.is_newmark else method.gamma,
+        "max_step_ratio": settings.max_step_ratio,
+        "dampings": ", ".join(repr(float(d)) for d in spectrum.dampings),
+        "period_grid": f"{periods.size} periods, {periods.min():g} s to {periods.max():g} s (listed on {sheets.SPECTRA})",
+        "hardening": float(settings.hardening),
+        "yielding_method": _yielding_text(settings.hardening, method)
+        + f"; tolerance: residual <= {DEFAULT_TOLERANCE:g}·(fy/m + PGA); sub-steps as for the elastic table",
+    }
+
+
+def _yielding_summary(oscillators: list[Oscillator], results: list[InelasticResponse], out: OutputUnits) -> dict[str, Any]:
+    worst = int(np.argmax([r.ductility for r in results]))
+    return {
+        "largest_ductility": results[worst].ductility,
+        "largest_ductility_label": oscillators[worst].label,
+        "largest_ductility_period": float(oscillators[worst].period),
+        "largest_ductility_reduction_factor": float(oscillators[worst].reduction_factor or 0.0),
+        "largest_ductility_peak_displacement": out.length_from_si(results[worst].peak_displacement),
+    }
+
+
+def _headline(
+    record: Record, spectrum: ElasticSpectrum, out: OutputUnits, content: dict[str, dict[str, Any]],
+    verification: tuple[float, float, float, float],
+) -> dict[str, Any]:
+    """The few numbers the command line prints after writing the workbook."""
+    best = int(np.argmax(spectrum.psa.max(axis=0)))
+    row = int(np.argmax(spectrum.psa[:, best]))
+    headline = {
+        "pga": out.acceleration_from_si(record.pga),
+        "unit": out.acceleration,
+        "peak_psa": float(out.acceleration_from_si(spectrum.psa[row, best])),
+        "peak_psa_period": float(spectrum.periods[best]),
+        "peak_psa_damping": float(spectrum.dampings[row]),
+        "verification_period": verification[0],
+        "verification_damping": verification[1],
+        "significant_duration": content["record_summary"]["significant_duration"],
+    }
+    if "yielding_summary" in content:
+        worst = content["yielding_summary"]
+        headline.update(
+            largest_ductility=worst["largest_ductility"],
+            largest_ductility_label=worst["largest_ductility_label"],
+            largest_ductility_reduction_factor=worst["largest_ductility_reduction_factor"],
+        )
+    return headline
+
+
+def spectrum_table(spectrum: ElasticSpectrum, out: OutputUnits) -> dict[str, Any]:
+    """Spectra as plain lists in the output units `out`: SD in its length unit, PSV in that per
+    second, PSA and SA in its acceleration unit (``units`` names them)."""
+    return {
+        "periods": spectrum.periods.tolist(),
+        "dampings": [float(d) for d in spectrum.dampings],
+        "sd": np.asarray(out.length_from_si(spectrum.sd)).tolist(),
+        "psv": np.asarray(out.velocity_from_si(spectrum.psv)).tolist(),
+        "psa": np.asarray(out.acceleration_from_si(spectrum.psa)).tolist(),
+        "sa": np.asarray(out.acceleration_from_si(spectrum.sa)).tolist(),
+        "units": {"sd": out.length, "psv": out.velocity, "psa": out.acceleration, "sa": out.acceleration},
+    }
+
+
+def stored_record(record: Record) -> Record:
+    """The record exactly as a workbook cell stores it.
+
+    Spreadsheet files keep 15 to 16 significant digits, and a sample in the
+    record's unit may need 17; the record is rounded to 16 digits (in its own
+    unit, negative zeros made positive) until that no longer changes it, so the Record sheet, the results
+    computed here and the SHA-256 on the Audit sheet all describe the same
+    samples. A record read from text (at most 15 digits) is returned as is.
+    """
+    current = record
+    for _ in range(6):  # 2-3 rounds suffice in practice
+        # + 0.0 turns -0.0 (written "-0", read back as 0) into 0.0
+        written = [float(f"{value:.16g}") + 0.0 for value in current.accel_in(current.unit)]
+        candidate = Record(np.asarray(written), record.dt, record.unit, name=record.name, header=record.header,
+                           history=record.history)  # fmt: skip
+        if candidate.accel.tobytes() == current.accel.tobytes():
+            return current
+        current = candidate
+    raise RuntimeError("the record's samples do not settle when rounded to 16 digits")
+
+
+def _verification_oscillator(record: Record, settings: ReportSettings, method) -> tuple[float, float, float, float]:
+    beta, gamma = (method.beta, method.gamma) if method.is_newmark else (0.25, 0.5)
+    period = settings.verification_period
+    damping = float(settings.verification_damping)
+    limit = record.dt / _VERIFY_STEP_RATIO
+    if period is None:
+        usable = [o for o in settings.oscillators if o.period >= limit]
+        if usable:
+            period, damping = float(usable[0].period), float(usable[0].damping)
+        else:
+            period = max(1.0, limit)
+    period = float(period)
+    if not period >= limit * (1.0 - 1e-12):
+        raise ValueError(
+            f"verification period {period!r} s is too short for the record step {record.dt!r} s: "
+            f"the sheet replays whole steps without sub-steps, so it needs T >= {limit:g} s (h/T <= 0.1)"
+        )
+    if not 0.0 <= damping < 1.0 or math.isnan(damping):
+        raise ValueError(f"verification damping must be a ratio in [0, 1), got {damping!r}")
+    return period, damping, float(beta), float(gamma)
+
+
+def yielding_method(method: Method) -> Method:
+    """The integration method of the yielding oscillators for workbook method `method`.
+
+    The workbook's own method when it is an implicit Newmark pair (β > 0),
+    which ``inelastic_response`` accepts; else (the exact method, explicit
+    β = 0) average acceleration.
+    """
+    if method.is_newmark and method.beta > 0.0:
+        return method
+    return resolve_method("average")
+
+
+def _reduction_factor(oscillator: Oscillator) -> float | None:
+    value = oscillator.reduction_factor
+    if value is None:
+        return None
+    if isinstance(value, bool) or not isinstance(value, (int, float, np.floating, np.integer)):
+        raise TypeError(f"oscillator {oscillator.label!r}: reduction factor R must be a number, got {value!r}")
+    if not (math.isfinite(value) and value > 0.0):
+        raise ValueError(f"oscillator {oscillator.label!r}: reduction factor R must be a number > 0, got {value!r}")
+    return float(value)
+
+
+def _yielding_responses(record: Record, settings: ReportSettings, method: Method):
+    """The oscillators that carry R, and their ``inelastic_response`` results."""
+    hardening = settings.hardening
+    if isinstance(hardening, bool) or not isinstance(hardening, (int, float)) or not 0.0 <= hardening < 1.0:
+        raise ValueError(f"hardening (post-yield stiffness ratio α) must be a number in [0, 1), got {hardening!r}")
+    used = yielding_method(method)
+    chosen = [o for o in settings.oscillators if _reduction_factor(o) is not None]
+    results = [
+        inelastic_response(
+            record, o.period, o.damping, method=used, reduction_factor=float(o.reduction_factor or 0.0),
+            hardening=settings.hardening, max_step_ratio=settings.max_step_ratio,
+        )
+        for o in chosen
+    ]  # fmt: skip
+    return chosen, results
+
+
+def _yielding_text(hardening: float, method: Method) -> str:
+    """One line naming the hysteresis and the integration method of the yielding table."""
+    used = yielding_method(method)
+    spring = "bilinear, elastoplastic (hardening α = 0)" if hardening == 0.0 else (
+        f"bilinear, kinematic hardening α = {hardening:g}"
+    )
+    text = f"{spring}; {used.describe()}, Newton-Raphson iterations on the residual force each step"
+    if not (method.is_newmark and method.beta > 0.0):
+        text += f" (the workbook's {method.name} method has no yielding form)"
+    return text
+
+
+def _yielding_table(oscillators, results, out: OutputUnits, hardening: float, method: Method) -> dict[str, list[Any]]:
+    text = _yielding_text(hardening, method)
+    return {
+        "label": [o.label for o in oscillators],
+        "period": [float(o.period) for o in oscillators],
+        "damping": [float(o.damping) for o in oscillators],
+        "reduction_factor": [float(o.reduction_factor) for o in oscillators],
+        "yield_coefficient": [r.yield_coefficient for r in results],
+        "yield_displacement": [out.length_from_si(r.yield_displacement) for r in results],
+        "peak_displacement": [out.length_from_si(r.peak_displacement) for r in results],
+        "ductility": [r.ductility for r in results],
+        "residual_displacement": [out.length_from_si(r.residual_displacement) for r in results],
+        "yield_excursions": [r.yield_excursions for r in results],
+        "hysteretic_share": [r.hysteretic_energy / r.input_energy if r.input_energy > 0.0 else 0.0 for r in results],
+        "energy_balance_error": [r.energy_balance_error for r in results],
+        "method": [text] * len(results),
+    }
+
+
+def _library_versions() -> str:
+    import numba
+    import openpyxl
+    import scipy
+
+    return f"{np.__version__} / {scipy.__version__} / {numba.__version__} / {openpyxl.__version__}"

@@ -1,0 +1,1 @@
+"""Worksheet functions: the function table, cells to numbers, caches, the ``STEP_`` functions."""

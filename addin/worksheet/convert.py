@@ -1,0 +1,166 @@
+"""Between cells and the core API: records and options from cells, results back into cells.
+
+The worksheet functions (``functions.py``) are one to three lines each; the
+work of turning cells into a `Record`, a method, output units and a strength,
+of caching, of calling the core with its warnings kept as data, and of
+laying a result out as cells is here, once.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Hashable
+from typing import Any
+
+import numpy as np
+
+from groundstep.core import Record, collect_warnings
+from groundstep.core.methods import Method, resolve_method
+from groundstep.core.units import ACCELERATION_UNITS, LENGTH_UNITS, VELOCITY_UNITS, OutputUnits, output_units
+
+from . import cache, cells
+from .cells import CellError
+from .registry import Quantity
+
+__all__ = [
+    "Cell",
+    "choice",
+    "cached",
+    "label",
+    "method",
+    "method_key",
+    "quiet",
+    "record",
+    "strength",
+    "summary",
+    "table",
+    "to_unit",
+    "units",
+]
+
+Cell = Any  # a value as the spreadsheet passes it: number, text, bool, None or nested lists
+
+
+def record(accel: Cell, dt: Cell, unit: Cell) -> tuple[Record, tuple[Any, ...]]:
+    """The record of the cells (parsed once per distinct cells, time step and unit) and its cache key."""
+    step = cells.positive(dt, "the time step", "s")
+    name = cells.unit(unit, "the record unit", ACCELERATION_UNITS)
+    key = ("record", cache.digest(accel), step, name)
+    found = cache.RECORDS.get_or_compute(
+        key, lambda: Record(cells.numbers(accel, "the acceleration range", min_count=2), step, name)
+    )
+    return found, key
+
+
+def choice(value: Cell, quantities: dict[str, Quantity], what: str = "the quantity") -> Quantity:
+    """The quantity named in a cell (case, ``_`` and ``-`` ignored); the first entry when blank."""
+    spelled = _plain(cells.text(value, what, next(iter(quantities))))
+    for name, quantity in quantities.items():
+        if _plain(name) == spelled:
+            return quantity
+    raise CellError(f"{what} {value!r} is not one of: {', '.join(quantities)}")
+
+
+def method(value: Cell) -> Method:
+    """The method of a cell or two-cell (beta, gamma) range; blank is average acceleration."""
+    return resolve_method(cells.method(value, "the method", "average"))
+
+
+def method_key(resolved: Method) -> Hashable:
+    """A cache key for a method (NaN beta and gamma of "exact" never equal themselves)."""
+    return resolved.name if resolved.name != "newmark" else (resolved.name, resolved.beta, resolved.gamma)
+
+
+def strength(yield_coefficient: Cell, reduction_factor: Cell) -> dict[str, float | None]:
+    """Exactly one of the yield coefficient and the reduction factor, as keyword arguments of the core."""
+    given = {
+        "yield_coefficient": cells.number(yield_coefficient, "the yield coefficient", None),
+        "reduction_factor": cells.number(reduction_factor, "the reduction factor", None),
+    }
+    if given["yield_coefficient"] is None and given["reduction_factor"] is None:
+        raise CellError("give the strength: a yield coefficient or a reduction factor (both are blank)")
+    if given["yield_coefficient"] is not None and given["reduction_factor"] is not None:
+        raise CellError(
+            f"give a yield coefficient or a reduction factor, not both (got {given['yield_coefficient']:g} "
+            f"and {given['reduction_factor']:g})"
+        )
+    return given
+
+
+def units(record_unit: str, accel_unit_out: Cell, length_unit_out: Cell) -> OutputUnits:
+    """Output units: the cells' choices, else the record's unit and its matching length unit."""
+    accel = cells.unit(accel_unit_out, "the output acceleration unit", ACCELERATION_UNITS, record_unit)
+    spelled = cells.text(length_unit_out, "the output length unit", None)
+    if spelled is None:
+        return output_units(record_unit, acceleration=accel)
+    try:
+        length = cells.unit(spelled, "the output length unit", LENGTH_UNITS)
+    except CellError:
+        try:  # a velocity unit such as "cm/s" names its length unit too
+            length = cells.unit(spelled, "the output length unit", VELOCITY_UNITS)[:-2]
+        except CellError:
+            raise CellError(
+                f"the output length unit {spelled!r} is not a known unit; use one of {', '.join(LENGTH_UNITS)}"
+            ) from None
+    return output_units(record_unit, acceleration=accel, length=length)
+
+
+def to_unit(value_si: Any, kind: str, out: OutputUnits) -> Any:
+    """SI value(s) in the output unit of their kind; scalars come back as Python numbers."""
+    convert = {
+        "length": out.length_from_si,
+        "velocity": out.velocity_from_si,
+        "acceleration": out.acceleration_from_si,
+        "energy": out.energy_from_si,
+    }.get(kind)
+    converted = np.asarray(value_si if convert is None else convert(value_si), dtype=np.float64)
+    if converted.ndim == 0:
+        return int(value_si) if kind == "count" else float(converted)
+    return converted
+
+
+def label(name: str, kind: str, out: OutputUnits) -> str:
+    """``name [unit]`` for a header cell."""
+    unit = {
+        "length": out.length,
+        "velocity": out.velocity,
+        "acceleration": out.acceleration,
+        "energy": out.energy,
+        "time": "s",
+    }.get(kind, "-")
+    return f"{name} [{unit}]"
+
+
+def table(
+    values: np.ndarray, rows: np.ndarray, columns: np.ndarray, corner: str, headers: bool, missing: str = ""
+) -> list[list[Any]]:
+    """Rows of values (NaN shown as `missing`), optionally under a header row and beside a header column."""
+    body = [[value if value == value else missing for value in line] for line in values.tolist()]
+    if not headers:
+        return body
+    return [[corner, *columns.tolist()], *([row, *line] for row, line in zip(rows.tolist(), body))]
+
+
+def quiet(compute: Callable[..., Any], *args: Any, **kwargs: Any) -> Any:
+    """Call a core function with its warnings kept as data and dropped.
+
+    Cells report what the warnings say in their own way: sub-steps through
+    ``STEP_ABOUT`` and the "substeps" quantities, an unreached ductility
+    target as "not reached", a split-and-converged step not at all. The
+    core's `collect_warnings` is per thread, so calls run concurrently.
+    """
+    with collect_warnings():
+        return compute(*args, **kwargs)
+
+
+def cached(store: cache.LRUCache, key: Hashable, compute: Callable[[], Any]) -> Any:
+    """`compute()` once per key in `store`."""
+    return store.get_or_compute(key, compute)
+
+
+def summary(result: Any, quantities: dict[str, Quantity]) -> dict[str, Any]:
+    """The scalar results a function may return, kept instead of the (large) result object."""
+    return {q.attribute: getattr(result, q.attribute) for q in quantities.values()}
+
+
+def _plain(name: str) -> str:
+    return " ".join(name.lower().replace("_", " ").replace("-", " ").split())

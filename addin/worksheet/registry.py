@@ -1,0 +1,215 @@
+"""The one table of worksheet functions: names, arguments, help texts and the quantities they return.
+
+Every ``STEP_`` function is declared once, with `worksheet_function`, in
+``functions.py``. The decorator records it in `FUNCTIONS` (name, summary,
+arguments with their help text, whether it spills) and applies the xlwings
+decorators from that same record, so the help Excel shows, the README table
+and any other spreadsheet binding are generated from one place.
+
+Help texts for an argument live in `ARGUMENT_HELP` under the argument's
+name; a function whose argument means something else names the entry
+(``help={"quantity": "peak_quantity"}``).
+"""
+
+from __future__ import annotations
+
+import functools
+import inspect
+from collections.abc import Callable
+from dataclasses import dataclass
+from typing import Any, NamedTuple
+
+import xlwings as xw
+
+from groundstep.addin.common import ERROR_PREFIX
+from groundstep.core import ConvergenceError
+
+from .cells import CellError
+
+__all__ = [
+    "ARGUMENT_HELP",
+    "CATEGORY",
+    "DUCTILITY_QUANTITIES",
+    "DUCTILITY_SPECTRUM_QUANTITIES",
+    "FUNCTIONS",
+    "PEAK_QUANTITIES",
+    "SPECTRUM_QUANTITIES",
+    "Argument",
+    "Quantity",
+    "SheetFunction",
+    "worksheet_function",
+]
+
+#: Category the functions are listed under in the spreadsheet's function wizard.
+CATEGORY = "groundstep"
+
+#: Help text of every argument, by name (or by the entry a function names instead).
+ARGUMENT_HELP: dict[str, str] = {
+    "accel": "Ground acceleration: one column (or row) of cells; text headers above and blank cells below are skipped.",
+    "dt": "Time step of the record [s].",
+    "unit": "Unit of the acceleration cells: g, m/s2, cm/s2, gal, mm/s2, in/s2 or ft/s2.",
+    "period": "Natural period T of the oscillator [s]; 0 is a rigid oscillator.",
+    "periods": "Periods T [s]: one column or row of cells; they become the rows of the table.",
+    "damping": "Ratio of critical damping, e.g. 0.05 or 5% (not 5). Omitted: 0.05.",
+    "dampings": "Ratios of critical damping: one cell, row or column; they become the columns of the table. Omitted: 0.05.",
+    "peak_quantity": "SD, SV, SA, PSV, PSA (default), SD time, SV time or SA time [s] (time of the peak), or substeps.",
+    "spectrum_quantity": "SD, SV, SA, PSV or PSA (default).",
+    "method": "average (default), linear or exact; or a two-cell range holding Newmark beta and gamma.",
+    "accel_unit_out": "Unit of returned accelerations: g, m/s2, cm/s2, gal, mm/s2, in/s2 or ft/s2. Blank: the record's unit.",
+    "length_unit_out": "Length unit of returned displacements and velocities (m, cm, mm, in, ft). Blank: matches the record's unit.",
+    "headers": "TRUE adds a header row (and for tables a header column) with names and units. Default FALSE.",
+    "yield_coefficient": "Yield strength over weight, Fy/(m g). Give this or reduction_factor.",
+    "reduction_factor": "Strength reduction factor R = elastic strength / yield strength. Give this or yield_coefficient.",
+    "hardening": "Post-yield stiffness over initial stiffness, in [0, 1). Default 0 (elastic-perfectly-plastic).",
+    "ductility_quantity": (
+        "ductility (default), peak displacement, yield displacement, residual displacement, hysteretic energy, "
+        "yield coefficient, reduction factor, peak displacement time [s], yield excursions or substeps."
+    ),
+    "ductilities": "Target ductilities (>= 1): one column or row; they become the columns of the table.",
+    "ductility_spectrum_quantity": (
+        "yield coefficient (default), reduction factor, yield PSA, peak displacement or achieved ductility. "
+        "An unreachable target shows 'not reached'."
+    ),
+    "inelastic_method": "average (default) or linear; or a two-cell range holding Newmark beta and gamma.",
+    "about_dt": "Optional time step [s]: with a period, reports the sub-steps used.",
+    "about_unit": "Optional record unit: reports the units results come back in.",
+    "about_period": "Optional period [s]: with a time step, reports the sub-steps used.",
+}
+
+#: Arguments that take a range of cells (passed as a two-dimensional list, error cells as text).
+RANGE_ARGUMENTS = frozenset({"accel", "periods", "dampings", "ductilities"})
+
+
+class Quantity(NamedTuple):
+    """One choice of a ``quantity`` argument: display name, result attribute, kind of unit."""
+
+    name: str
+    attribute: str
+    kind: str  # "length", "velocity", "acceleration", "energy", "time", "count" or "ratio"
+
+
+# quantity as typed (matched ignoring case, "_" and "-") -> Quantity
+PEAK_QUANTITIES: dict[str, Quantity] = {
+    "SD": Quantity("SD", "peak_displacement", "length"),
+    "SV": Quantity("SV", "peak_velocity", "velocity"),
+    "SA": Quantity("SA", "peak_total_acceleration", "acceleration"),
+    "PSV": Quantity("PSV", "pseudo_velocity", "velocity"),
+    "PSA": Quantity("PSA", "pseudo_acceleration", "acceleration"),
+    "SD time": Quantity("time of SD", "time_of_peak_displacement", "time"),
+    "SV time": Quantity("time of SV", "time_of_peak_velocity", "time"),
+    "SA time": Quantity("time of SA", "time_of_peak_total_acceleration", "time"),
+    "substeps": Quantity("sub-steps", "substeps", "count"),
+}
+SPECTRUM_QUANTITIES: dict[str, Quantity] = {
+    "SD": Quantity("SD", "sd", "length"),
+    "SV": Quantity("SV", "sv", "velocity"),
+    "SA": Quantity("SA", "sa", "acceleration"),
+    "PSV": Quantity("PSV", "psv", "velocity"),
+    "PSA": Quantity("PSA", "psa", "acceleration"),
+}
+DUCTILITY_QUANTITIES: dict[str, Quantity] = {
+    "ductility": Quantity("ductility", "ductility", "ratio"),
+    "peak displacement": Quantity("peak displacement", "peak_displacement", "length"),
+    "yield displacement": Quantity("yield displacement", "yield_displacement", "length"),
+    "residual displacement": Quantity("residual displacement", "residual_displacement", "length"),
+    "hysteretic energy": Quantity("hysteretic energy per unit mass", "hysteretic_energy", "energy"),
+    "yield coefficient": Quantity("yield coefficient", "yield_coefficient", "ratio"),
+    "reduction factor": Quantity("reduction factor", "reduction_factor", "ratio"),
+    "peak displacement time": Quantity("time of peak displacement", "time_of_peak_displacement", "time"),
+    "yield excursions": Quantity("yield excursions", "yield_excursions", "count"),
+    "substeps": Quantity("sub-steps", "substeps", "count"),
+}
+DUCTILITY_SPECTRUM_QUANTITIES: dict[str, Quantity] = {
+    "yield coefficient": Quantity("yield coefficient", "yield_coefficient", "ratio"),
+    "reduction factor": Quantity("reduction factor", "reduction_factor", "ratio"),
+    "yield PSA": Quantity("yield PSA", "yield_pseudo_acceleration", "acceleration"),
+    "peak displacement": Quantity("peak displacement", "peak_displacement", "length"),
+    "achieved ductility": Quantity("achieved ductility", "achieved_ductility", "ratio"),
+}
+
+
+@dataclass(frozen=True, slots=True)
+class Argument:
+    """One positional argument of a worksheet function."""
+
+    name: str
+    help: str
+    default: Any
+    required: bool
+    is_range: bool
+
+
+@dataclass(frozen=True, slots=True)
+class SheetFunction:
+    """One worksheet function as every spreadsheet binding sees it."""
+
+    name: str
+    summary: str
+    arguments: tuple[Argument, ...]
+    spills: bool
+    function: Callable[..., Any]
+
+
+#: Every worksheet function, in declaration order.
+FUNCTIONS: dict[str, SheetFunction] = {}
+
+
+def worksheet_function(
+    *, spills: bool = False, help: dict[str, str] | None = None
+) -> Callable[[Callable[..., Any]], Callable[..., Any]]:
+    """Declare a worksheet function: record it in `FUNCTIONS`, guard it, decorate it for xlwings.
+
+    Parameters
+    ----------
+    spills : bool
+        The function returns a table (rows of cells) rather than one value.
+    help : dict, optional
+        Argument name -> key of `ARGUMENT_HELP` where it differs from the name.
+
+    The function keeps every parameter positional (xlwings refuses
+    keyword-only ones) and its docstring's first line is the summary Excel
+    shows. Failures come back as one cell of text starting with
+    ``ERROR_PREFIX``.
+    """
+    entries = help or {}
+
+    def declare(function: Callable[..., Any]) -> Callable[..., Any]:
+        parameters = inspect.signature(function).parameters.values()
+        arguments = tuple(
+            Argument(
+                p.name,
+                ARGUMENT_HELP[entries.get(p.name, p.name)],
+                None if p.default is inspect.Parameter.empty else p.default,
+                p.default is inspect.Parameter.empty,
+                p.name in RANGE_ARGUMENTS,
+            )
+            for p in parameters
+        )
+        summary = (function.__doc__ or "").strip().splitlines()[0]
+        guarded = _guard(function)
+        decorated: Callable[..., Any] = guarded
+        for argument in reversed(arguments):
+            options: dict[str, Any] = {"doc": argument.help}
+            if argument.is_range:
+                options.update(ndim=2, err_to_str=True)
+            decorated = xw.arg(argument.name, **options)(decorated)
+        decorated = xw.func(category=CATEGORY)(decorated)
+        FUNCTIONS[function.__name__] = SheetFunction(function.__name__, summary, arguments, spills, decorated)
+        return decorated
+
+    return declare
+
+
+def _guard(function: Callable[..., Any]) -> Callable[..., Any]:
+    """Return failures as one cell of text starting with ERROR_PREFIX."""
+
+    @functools.wraps(function)
+    def guarded(*args: Any) -> Any:
+        try:
+            return function(*args)
+        except (CellError, ValueError, TypeError, ConvergenceError) as exc:
+            return f"{ERROR_PREFIX}{exc}"
+        except Exception as exc:  # noqa: BLE001 - a cell must never see a traceback
+            return f"{ERROR_PREFIX}unexpected {type(exc).__name__}: {exc} (please report this)"
+
+    return guarded
