@@ -38,7 +38,7 @@ def run(args: argparse.Namespace, command_line: str) -> int:
     """Plan the outputs, run the jobs, report failures one line each."""
     from groundstep.core.units import ACCELERATION_UNITS
 
-    from .batch import plan_outputs, run_batch
+    from .spectrum_jobs import plan_outputs, run_batch
 
     if args.unit is None:  # a wrong unit scales every result: never assumed
         raise UsageError(f"give the acceleration unit of the files with --unit ({', '.join(ACCELERATION_UNITS)})")

@@ -1,4 +1,4 @@
-"""Tests of groundstep.addin.cli.batch: the jobs of ``groundstep spectrum``."""
+"""Tests of groundstep.addin.cli.spectrum_jobs: the jobs of ``groundstep spectrum``."""
 
 from __future__ import annotations
 
@@ -9,7 +9,7 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
-from groundstep.addin.cli.batch import plan_outputs, run_batch, spectrum_job
+from groundstep.addin.cli.spectrum_jobs import plan_outputs, run_batch, spectrum_job
 from groundstep.addin.result.content import ReportSettings
 from groundstep.core import Record, elastic_spectrum
 
