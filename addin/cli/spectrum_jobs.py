@@ -19,7 +19,16 @@ from pathlib import Path
 from groundstep.addin.common import CAUTION, write_atomically
 from groundstep.addin.result.content import ReportSettings
 
-__all__ = ["plan_outputs", "run_batch", "spectrum_job"]
+__all__ = ["OPTION_NAMES", "plan_outputs", "run_batch", "spectrum_job"]
+
+#: How record-reading messages name the arguments on this command line.
+OPTION_NAMES = {
+    "dt": "--dt",
+    "give_dt": "pass --dt SECONDS",
+    "unit": "--unit",
+    "time_column": "--time-column yes",
+    "no_time_column": "--time-column no",
+}
 
 
 def plan_outputs(records: Sequence[str], out_dir: Path, fmt: str) -> list[tuple[Path, Path]]:
@@ -54,7 +63,7 @@ def spectrum_job(
     from groundstep.core.units import output_units
 
     with collect_warnings():
-        record = Record.from_text(source, dt, unit, time_column=time_column)
+        record = Record.from_text(source, dt, unit, time_column=time_column, option_names=OPTION_NAMES)
         if target.suffix == ".xlsx":
             report = build_report(record, settings, command=command, source=source.name)
             write_report(report, target, force=True)
