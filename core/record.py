@@ -22,6 +22,12 @@ __all__ = ["ProcessingStep", "Record", "RecordTextWarning"]
 TIME_SPACING_TOLERANCE = _record_text.TIME_SPACING_TOLERANCE
 
 
+#: Significant digits of the samples the record digest covers: what a
+#: spreadsheet keeps of a number when it saves a file (15, the precision of
+#: Excel and LibreOffice Calc cells).
+DIGEST_SIGNIFICANT_DIGITS = 15
+
+
 class RecordTextWarning(UserWarning):
     """Lines of a record file were skipped (non-numeric header lines)."""
 
@@ -181,17 +187,21 @@ class Record:
         return displacement
 
     def sha256(self) -> str:
-        """SHA-256 hex digest of the samples (in the record's own unit) and of dt.
+        """SHA-256 hex digest of the samples (in the record's own unit) and of dt, to 15 digits.
 
         The digest covers the float64 little-endian bytes of
-        ``accel_in(unit)``, then the unit name and the repr of dt, so the
-        same values read back from a workbook in the same unit and passed to
-        ``Record`` give the same digest.
+        ``accel_in(unit)`` with each sample rounded to
+        `DIGEST_SIGNIFICANT_DIGITS` significant digits, then the unit name and
+        dt rounded the same way. Spreadsheets store 15 significant digits
+        (Excel and LibreOffice Calc both write a cell's number with 15), so a
+        workbook that another spreadsheet opened and saved unchanged gives the
+        same digest as the one written with every digit.
         """
         digest = hashlib.sha256()
-        samples = self.accel_in(self.unit) + 0.0  # + 0.0 turns -0.0 into 0.0: equal values, equal digest
+        samples = _round_significant(self.accel_in(self.unit)) + 0.0  # + 0.0: -0.0 and 0.0 give one digest
         digest.update(np.ascontiguousarray(samples, dtype="<f8").tobytes())
-        digest.update(f"|{self.unit}|{self.dt!r}".encode())
+        dt = float(_round_significant(np.array([self.dt]))[0])
+        digest.update(f"|{self.unit}|{dt!r}".encode())
         return digest.hexdigest()
 
     @classmethod
@@ -336,3 +346,9 @@ def _read_source(source: str | os.PathLike[str]) -> tuple[str, str]:
 def _looks_like_time(values: list[float]) -> bool:
     """True when `values` strictly increase: a time column (spacing is checked later)."""
     return bool(np.all(np.diff(np.asarray(values, dtype=np.float64)) > 0.0))
+
+
+def _round_significant(values: NDArray[np.float64]) -> NDArray[np.float64]:
+    """Each value rounded to `DIGEST_SIGNIFICANT_DIGITS` significant digits (decimal, as printed)."""
+    text = np.char.mod(f"%.{DIGEST_SIGNIFICANT_DIGITS - 1}e", np.asarray(values, dtype=np.float64))
+    return text.astype(np.float64)

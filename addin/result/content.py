@@ -369,24 +369,27 @@ def spectrum_table(spectrum: ElasticSpectrum, out: OutputUnits) -> dict[str, Any
 
 
 def stored_record(record: Record) -> Record:
-    """The record exactly as a workbook cell stores it.
+    """The record exactly as a workbook cell stores it: 15 significant digits.
 
-    Spreadsheet files keep 15 to 16 significant digits, and a sample in the
-    record's unit may need 17; the record is rounded to 16 digits (in its own
-    unit, negative zeros made positive) until that no longer changes it, so the Record sheet, the results
-    computed here and the SHA-256 on the Audit sheet all describe the same
-    samples. A record read from text (at most 15 digits) is returned as is.
+    Spreadsheets keep 15 significant digits of a cell's number (Excel and
+    LibreOffice Calc write no more when they save), and a sample in the
+    record's unit may need 17; the record is rounded to 15 digits (in its own
+    unit, negative zeros made positive) until that no longer changes it, so
+    the Record sheet, the results computed here and the SHA-256 on the Audit
+    sheet (also over 15 digits) describe the same samples, before and after
+    another spreadsheet saves the file. A record read from text with at
+    most 15 digits is returned as is.
     """
     current = record
     for _ in range(6):  # 2-3 rounds suffice in practice
         # + 0.0 turns -0.0 (written "-0", read back as 0) into 0.0
-        written = [float(f"{value:.16g}") + 0.0 for value in current.accel_in(current.unit)]
+        written = [float(f"{value:.15g}") + 0.0 for value in current.accel_in(current.unit)]
         candidate = Record(np.asarray(written), record.dt, record.unit, name=record.name, header=record.header,
                            history=record.history)  # fmt: skip
         if candidate.accel.tobytes() == current.accel.tobytes():
             return current
         current = candidate
-    raise RuntimeError("the record's samples do not settle when rounded to 16 digits")
+    raise RuntimeError("the record's samples do not settle when rounded to 15 digits")
 
 
 def _verification_oscillator(record: Record, settings: ReportSettings, method) -> tuple[float, float, float, float]:

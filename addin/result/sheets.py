@@ -266,6 +266,7 @@ def _verification(n_samples) -> Sheet:
             ("verification_dt", f"={RECORD}!{{dt}}"),
             ("verification_factor", f"={RECORD}!{{unit_factor}}"),
         ),
+        checked=True,  # a changed β, γ, tolerance or formula is a mismatch (the period and damping are read back)
     )  # fmt: skip
     constants = Fields(
         "verification_constants", "Newmark constants (Newmark 1959)", 12, 1,
@@ -343,7 +344,12 @@ def _audit() -> Sheet:
             Field("python_version", "Python", "", TEXT),
             Field("library_versions", "numpy / scipy / numba / openpyxl", "", TEXT),
             Field("platform", "Platform", "", TEXT),
-            Field("record_sha256", "Record SHA-256 (samples as on the Record sheet, unit, dt)", "", TEXT),
+            Field(
+                "record_sha256",
+                "Record SHA-256 (samples as on the Record sheet rounded to 15 significant digits, as spreadsheets "
+                "store them; unit; dt). verify compares numbers to 1e-9 relative",
+                "", TEXT,
+            ),
             Field("record_source", "Record source", "", TEXT),
             Field("caution", "Caution", "", TEXT),
         ),
