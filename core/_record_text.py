@@ -153,9 +153,10 @@ def uniform_step(
             f"the usual step is {typical:.6g} s"
         )
     step = float((times[-1] - times[0]) / (times.size - 1))
-    decimals = max(_decimals(text) for text in texts)
-    if decimals is None:
+    shown = [_decimals(text) for text in texts]
+    if any(d is None for d in shown):
         return step
+    decimals = max(d for d in shown if d is not None)
     rounded = round(step, decimals)
     # keep the rounding only when it moves the step by round-off, never by a visible amount
     return rounded if rounded > 0.0 and abs(rounded - step) <= 1e-9 * step else step

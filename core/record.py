@@ -276,9 +276,9 @@ class Record:
 
         Examples
         --------
-        >>> Record.from_text("0,0\n0,1\n-0,05\n", dt=0.01, unit="g").accel_in("g").tolist()
+        >>> Record.from_text("0,0\\n0,1\\n-0,05\\n", dt=0.01, unit="g").accel_in("g").tolist()
         [0.0, 0.1, -0.05]
-        >>> Record.from_text("0.00,0.0\n0.02,0.1\n0.04,0.0\n", unit="g").dt
+        >>> Record.from_text("0.00,0.0\\n0.02,0.1\\n0.04,0.0\\n", unit="g").dt
         0.02
         """
         names = dict(option_names or {})

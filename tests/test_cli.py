@@ -109,7 +109,7 @@ def test_verify_exit_codes(demo, tmp_path, capsys):
     assert main(["verify", str(yielding)]) == 1
     report = capsys.readouterr().out
     assert "MISMATCH  Peaks / Yielding oscillators" in report and "first: H14 holds 1, recomputed" in report
-    assert "1 of 12 checks do not match: Peaks / Yielding oscillators" in report
+    assert "1 of 14 checks do not match: Peaks / Yielding oscillators" in report
     other = tmp_path / "other.xlsx"
     openpyxl.Workbook().save(other)
     assert main(["verify", str(other)]) == 2
@@ -243,7 +243,9 @@ def test_spectrum_many_files_in_parallel(tmp_path):
     # values are written with repr (17 digits): equal to the core API within rounding of the period grid
     assert_allclose(table[:, 7], spectrum.psa[1] / 9.80665, rtol=1e-12)
     json_run = _run("spectrum", files[0], "--dt", "0.01", "--unit", "g", "--out-dir", out_dir, "--format", "json", "--quiet")
-    assert json_run.returncode == 0 and json_run.stderr == ""
+    # only plausibility notes on stderr: the 3 s record is shorter than the longest periods
+    assert json_run.returncode == 0
+    assert all(line.startswith("groundstep: note: rec0.txt: ") for line in json_run.stderr.splitlines())
     data = json.loads((out_dir / "rec0.spectrum.json").read_text())
     assert data["units"] == {"sd": "m", "psv": "m/s", "psa": "g", "sa": "g"} and data["caution"] == lay.CAUTION
     again = _run("spectrum", files[0], "--dt", "0.01", "--unit", "g", "--out-dir", out_dir, "--format", "json")

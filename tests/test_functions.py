@@ -452,7 +452,9 @@ def test_worksheet_functions_from_threads_match_serial_values():
 
 # ----------------------------------------------------------------------------- declarations
 
-WORKSHEET = ["STEP_ABOUT", "STEP_DUCTILITY", "STEP_DUCTILITY_SPECTRUM", "STEP_HISTORY", "STEP_PEAK", "STEP_SPECTRUM"]
+WORKSHEET = [
+    "STEP_ABOUT", "STEP_CHECK", "STEP_DUCTILITY", "STEP_DUCTILITY_SPECTRUM", "STEP_HISTORY", "STEP_PEAK", "STEP_SPECTRUM",
+]
 
 
 def test_every_function_is_in_the_one_table():

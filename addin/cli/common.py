@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import sys
 from collections.abc import Sequence
 from dataclasses import replace
 from pathlib import Path
@@ -23,6 +24,7 @@ __all__ = [
     "add_settings",
     "floats",
     "print_headline",
+    "print_notes",
     "refuse_existing",
     "settings_from_options",
 ]
@@ -128,3 +130,11 @@ def print_headline(out: Path, report: Any, seconds: float) -> None:
         "every step written as formulas (open in a spreadsheet; check with 'groundstep verify')"
     )
     print(f"  {CAUTION}")
+    print_notes(report.content.get("findings", {}))
+
+
+def print_notes(findings: dict[str, list[str]], prefix: str = "") -> None:
+    """The plausibility notes as ``groundstep: note: ...`` lines on stderr (none for the "none" row)."""
+    for check, message in zip(findings.get("check", []), findings.get("finding", [])):
+        if check != "none":
+            print(f"groundstep: note: {prefix}{message}", file=sys.stderr)

@@ -60,10 +60,13 @@ def spectrum_job(
     from groundstep.addin.result.content import build_report, spectrum_table
     from groundstep.addin.result.offline import write_report
     from groundstep.core import Record, collect_warnings, elastic_spectrum
+    from groundstep.core.plausibility import check_record
     from groundstep.core.units import output_units
 
     with collect_warnings():
         record = Record.from_text(source, dt, unit, time_column=time_column, option_names=OPTION_NAMES)
+        for finding in check_record(record, settings.periods):
+            print(f"groundstep: note: {source.name}: {finding}", file=sys.stderr)
         if target.suffix == ".xlsx":
             report = build_report(record, settings, command=command, source=source.name)
             write_report(report, target, force=True)

@@ -39,6 +39,7 @@ from groundstep.core.defaults import (
 )
 from groundstep.core.measures import arias_intensity, normalised_arias, significant_duration
 from groundstep.core.methods import Method, resolve_method
+from groundstep.core.plausibility import check_record
 from groundstep.core.units import ACCELERATION_UNITS, OutputUnits, output_units
 
 from . import sheets
@@ -178,9 +179,10 @@ def build_report(
         ]
         yielding_oscillators, yielding = _yielding_responses(record, settings, method)
     verification = _verification_oscillator(record, settings, method)
+    findings = _findings(record, settings)
     layout = sheets.result_layout(
         record.n, spectrum.periods.size, tuple(float(d) for d in spectrum.dampings), len(peaks),
-        out.acceleration, out.length, len(yielding),
+        out.acceleration, out.length, len(yielding), len(findings["check"]),
     )  # fmt: skip
     table = spectrum_table(spectrum, out)
     content: dict[str, dict[str, Any]] = {
@@ -188,6 +190,7 @@ def build_report(
         "record_summary": _record_summary(record, out),
         "key_results": _key_results(spectrum, table),
         "check": {},
+        "findings": findings,
         "record": {"record_unit": record.unit, "dt": record.dt, "unit_factor": ACCELERATION_UNITS[record.unit]},
         "record_table": {
             "time": record.time.tolist(),
@@ -204,6 +207,15 @@ def build_report(
     if yielding:
         content["yielding_summary"] = _yielding_summary(yielding_oscillators, yielding, out)
     return Report(layout, content, _headline(record, spectrum, out, content, verification))
+
+
+def _findings(record: Record, settings: ReportSettings) -> dict[str, list[str]]:
+    """The plausibility notes of the record and every period the workbook uses; one "none" row when empty."""
+    periods = [*settings.periods, *(o.period for o in settings.oscillators)]
+    found = check_record(record, periods)
+    if not found:
+        return {"check": ["none"], "finding": ["no plausibility notes (time step, PGA for the unit, periods, drift)"]}
+    return {"check": [f.check for f in found], "finding": [f.message for f in found]}
 
 
 def _project(settings: ReportSettings) -> dict[str, str]:

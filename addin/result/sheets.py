@@ -65,6 +65,7 @@ def result_layout(
     unit: str,
     length_unit: str,
     n_yielding: int = 0,
+    n_findings: int = 1,
 ) -> WorkbookLayout:
     """The result workbook's layout for the given sizes and units.
 
@@ -81,11 +82,14 @@ def result_layout(
         Oscillators that carry a strength reduction factor R: rows of the
         yielding table on the Peaks sheet (title and header only when 0;
         the Summary's yielding block appears only when > 0).
+    n_findings : int, default 1
+        Rows of the Summary's plausibility notes (``core.plausibility``; one
+        row saying "none" when there is nothing to note).
     """
     velocity_unit = f"{length_unit}/s"
     return WorkbookLayout(
         (
-            _summary(dampings, unit, length_unit, velocity_unit, n_yielding),
+            _summary(dampings, unit, length_unit, velocity_unit, n_yielding, n_findings),
             _record(n_samples, unit),
             _spectra(n_periods, dampings, unit, length_unit, velocity_unit),
             _peaks(n_oscillators, unit, length_unit, velocity_unit, n_yielding),
@@ -95,7 +99,7 @@ def result_layout(
     )
 
 
-def _summary(dampings, unit, length_unit, velocity_unit, n_yielding) -> Sheet:
+def _summary(dampings, unit, length_unit, velocity_unit, n_yielding, n_findings) -> Sheet:
     project = Fields(
         "project", "Scenario and project", 4, 1,
         (
@@ -151,6 +155,14 @@ def _summary(dampings, unit, length_unit, velocity_unit, n_yielding) -> Sheet:
             checked=True,
         )  # fmt: skip
         blocks += (yielding,)
+    findings = Table(
+        "findings", "Plausibility notes (warnings, not errors; groundstep.core.plausibility)",
+        27 + len(dampings) + (7 if n_yielding else 0), 1,
+        (Column("check", "Check", "", TEXT, 22.0), Column("finding", "Note", "", TEXT, 100.0)),
+        max(n_findings, 1),
+        checked=True,
+    )  # fmt: skip
+    blocks += (findings,)
     return Sheet(SUMMARY, "groundstep result workbook", blocks, note=CAUTION)
 
 

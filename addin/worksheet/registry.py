@@ -57,6 +57,7 @@ ARGUMENT_HELP: dict[str, str] = {
     "method": "average (default), linear or exact; or a two-cell range holding Newmark beta and gamma.",
     "accel_unit_out": "Unit of returned accelerations: g, m/s2, cm/s2, gal, mm/s2, in/s2 or ft/s2. Blank: the record's unit.",
     "length_unit_out": "Length unit of returned displacements and velocities (m, cm, mm, in, ft). Blank: matches the record's unit.",
+    "check_periods": "Periods T [s] the record will be used for (optional): checked against the record's length and 2·dt.",
     "headers": "TRUE adds a header row (and for tables a header column) with names and units. Default FALSE.",
     "yield_coefficient": "Yield strength over weight, Fy/(m g). Give this or reduction_factor.",
     "reduction_factor": "Strength reduction factor R = elastic strength / yield strength. Give this or yield_coefficient.",
