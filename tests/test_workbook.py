@@ -173,11 +173,16 @@ def _core_yielding(record, settings):
     """inelastic_response for each oscillator that has R, as the workbook should show it."""
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
-        return [
-            (o, inelastic_response(stored_record(record), o.period, o.damping, reduction_factor=o.reduction_factor))
-            for o in settings.oscillators
-            if o.reduction_factor is not None
-        ]
+        found = []
+        for o in settings.oscillators:
+            if o.reduction_factor is None:
+                continue
+            # R divides the elastic force at the workbook's step ratio (the Peaks sheet's PSA);
+            # the yielding oscillator steps at the yielding default ratio (0.02)
+            elastic = linear_response(stored_record(record), o.period, o.damping, max_step_ratio=settings.max_step_ratio)
+            cy = elastic.pseudo_acceleration / o.reduction_factor / STANDARD_GRAVITY
+            found.append((o, inelastic_response(stored_record(record), o.period, o.damping, yield_coefficient=cy)))
+        return found
 
 
 def test_yielding_table_equals_the_core_api(made):

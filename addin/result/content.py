@@ -35,12 +35,13 @@ from groundstep.core.defaults import (
     DEFAULT_DAMPINGS,
     DEFAULT_STEP_RATIO,
     DEFAULT_TOLERANCE,
+    DEFAULT_YIELDING_STEP_RATIO,
     default_periods,
 )
 from groundstep.core.measures import arias_intensity, normalised_arias, significant_duration
 from groundstep.core.methods import Method, resolve_method
 from groundstep.core.plausibility import check_record
-from groundstep.core.units import ACCELERATION_UNITS, OutputUnits, output_units
+from groundstep.core.units import ACCELERATION_UNITS, STANDARD_GRAVITY, OutputUnits, output_units
 
 from . import sheets
 from .layout import FORMAT_ID, WorkbookLayout
@@ -54,6 +55,7 @@ __all__ = [
     "spectrum_table",
     "stored_record",
     "yielding_method",
+    "yielding_step_ratio",
 ]
 
 #: Largest h/T the Verification oscillator may have: at or below the default
@@ -444,18 +446,30 @@ def _reduction_factor(oscillator: Oscillator) -> float | None:
     return check_positive(oscillator.reduction_factor, f"oscillator {oscillator.label!r}: reduction factor R")
 
 
+def yielding_step_ratio(ratio: float | None) -> float | None:
+    """Largest Δt/T of the yielding oscillators: the workbook's ratio, at most `DEFAULT_YIELDING_STEP_RATIO`.
+
+    A yielding oscillator needs a finer step than an elastic one for 1 %
+    accuracy (``groundstep.core.defaults``); None (sub-stepping off) stays off.
+    """
+    return None if ratio is None else min(float(ratio), DEFAULT_YIELDING_STEP_RATIO)
+
+
 def _yielding_responses(record: Record, settings: ReportSettings, method: Method):
     """The oscillators that carry R, and their ``inelastic_response`` results."""
     check_hardening(settings.hardening, "hardening (post-yield stiffness ratio α)")
     used = yielding_method(method)
     chosen = [o for o in settings.oscillators if _reduction_factor(o) is not None]
-    results = [
-        inelastic_response(
-            record, o.period, o.damping, method=used, reduction_factor=float(o.reduction_factor or 0.0),
-            hardening=settings.hardening, max_step_ratio=settings.max_step_ratio,
-        )
-        for o in chosen
-    ]  # fmt: skip
+    results = []
+    for o in chosen:
+        # R divides the elastic force the Peaks sheet shows (the workbook's step ratio); the yielding
+        # oscillator itself steps at the finer yielding ratio for 1 % accuracy
+        elastic = linear_response(record, o.period, o.damping, used, max_step_ratio=settings.max_step_ratio)
+        coefficient = elastic.pseudo_acceleration / float(o.reduction_factor or 1.0) / STANDARD_GRAVITY
+        results.append(inelastic_response(
+            record, o.period, o.damping, method=used, yield_coefficient=coefficient,
+            hardening=settings.hardening, max_step_ratio=yielding_step_ratio(settings.max_step_ratio),
+        ))  # fmt: skip
     return chosen, results
 
 
@@ -465,7 +479,10 @@ def _yielding_text(hardening: float, method: Method) -> str:
     spring = "bilinear, elastoplastic (hardening α = 0)" if hardening == 0.0 else (
         f"bilinear, kinematic hardening α = {hardening:g}"
     )
-    text = f"{spring}; {used.describe()}, Newton-Raphson iterations on the residual force each step"
+    text = (
+        f"{spring}; {used.describe()}, Newton-Raphson iterations on the residual force each step; "
+        f"h/T <= {DEFAULT_YIELDING_STEP_RATIO:g} (1 % accuracy)"
+    )
     if not (method.is_newmark and method.beta > 0.0):
         text += f" (the workbook's {method.name} method has no yielding form)"
     return text
