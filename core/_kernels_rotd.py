@@ -20,8 +20,11 @@ peak, so the kernel keeps only points that may be hull vertices:
 * at the end, the peak for each requested angle is the largest |projection|
   over the witnesses and the buffered points outside the final Q.
 
-This is exact (the same maxima as projecting every point), for any motion,
-including one polarised along a line.
+This gives the same maxima as projecting every point (to round-off of the
+inside tests), for any motion, including one polarised along a line (Q is
+then a segment; the test against Q's largest vertex radius keeps it exact).
+Q is rebuilt only when a point that did not move a witness needs the test,
+so a growing orbit does not rebuild it at every step.
 """
 
 from __future__ import annotations

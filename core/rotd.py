@@ -8,7 +8,6 @@ u(θ) = u_x·cosθ + u_y·sinθ, so the peaks over angles need no extra runs.
 from __future__ import annotations
 
 import math
-import warnings
 from dataclasses import dataclass
 
 import numba
@@ -17,13 +16,10 @@ from numpy.typing import ArrayLike, NDArray
 
 from . import _coefficients, _kernels, _kernels_rotd
 from .checks import check_damping, check_periods, check_positive
-from .linear import DEFAULT_STEP_RATIO, SubstepWarning
+from .defaults import DEFAULT_DAMPING, DEFAULT_STEP_RATIO
+from .linear import _warn_grid_substeps
+from .methods import Method, resolve_method, substep_counts
 from .record import Record
-
-try:  # the public module; the private name is kept while the package moves
-    from .methods import Method, resolve_method, substep_counts
-except ImportError:  # pragma: no cover - older layout
-    from ._methods import Method, resolve_method, substep_counts
 
 __all__ = ["DEFAULT_ANGLE_STEP", "RotDSpectrum", "rotd_spectrum"]
 
@@ -116,7 +112,7 @@ def rotd_spectrum(
     record_x: Record,
     record_y: Record,
     periods: ArrayLike,
-    damping: float = 0.05,
+    damping: float = DEFAULT_DAMPING,
     method: str | tuple[float, float] = "average",
     percentiles: ArrayLike = (50, 100),
     *,
@@ -237,7 +233,7 @@ def rotd_spectrum(
         extremes[rows] = found_extremes
     if not moving.all():
         peaks[~moving], extremes[~moving] = _rigid_peaks(record_x.accel, record_y.accel, cosines, sines)
-    _warn_substeps(record_x.dt, substeps, resolved, ratio)
+    _warn_grid_substeps(record_x.dt, substeps, "periods", resolved, ratio)  # the one wording of both engines
 
     psa_x, psa_y, rotd100 = extremes[:, 0], extremes[:, 1], extremes[:, 2]
     direction = np.degrees(np.arctan2(extremes[:, 4], extremes[:, 3])) % 180.0
@@ -359,16 +355,3 @@ def _rigid_peaks(accel_x: NDArray[np.float64], accel_y: NDArray[np.float64], cos
     extremes = np.array([np.max(np.abs(accel_x)), np.max(np.abs(accel_y)), radius[index],
                          accel_x[index], accel_y[index]])  # fmt: skip
     return peaks, extremes
-
-
-def _warn_substeps(dt: float, substeps: NDArray[np.int64], method: Method, ratio: float | None) -> None:
-    """One SubstepWarning, worded as elastic_spectrum's, when any oscillator was sub-stepped."""
-    if substeps.max() > 1:
-        limit = min(math.inf if ratio is None else ratio, method.stability_limit)
-        split = int(np.count_nonzero(substeps > 1))
-        warnings.warn(
-            f"record step {dt:g} s: {split} of {substeps.size} periods sub-stepped, "
-            f"up to {substeps.max()} sub-steps (Δt/T <= {limit:.4g})",
-            SubstepWarning,
-            stacklevel=3,
-        )
