@@ -17,7 +17,7 @@ from . import _notices, _validate
 from .checks import check_damping, check_periods, check_positive
 from .units import ACCELERATION_UNITS, normalise_unit
 
-__all__ = ["DESIGN_STANDARDS", "DesignSpectrum", "DesignSpectrumWarning", "design_spectrum"]
+__all__ = ["DESIGN_STANDARDS", "DesignSpectrum", "DesignSpectrumWarning", "EN1998_GROUND_PARAMETERS", "design_spectrum"]
 
 
 class DesignSpectrumWarning(UserWarning):
