@@ -25,8 +25,8 @@ from groundstep.addin.calc.live import CalcWriter, calc_formula
 from groundstep.addin.calc.template import CALC_TEMPLATE_FILE, build_calc_package, calc_formula_names
 from groundstep.addin.cli import main
 from groundstep.addin.common import ERROR_PREFIX
-from groundstep.addin.result.layout import NAME_PREFIX
 from groundstep.addin.functions import STEP_ABOUT, STEP_DUCTILITY, STEP_HISTORY, STEP_PEAK, STEP_SPECTRUM
+from groundstep.addin.result.layout import NAME_PREFIX
 from groundstep.addin.worksheet.registry import FUNCTIONS
 from groundstep.core.synthetic import synthetic_record
 
@@ -205,7 +205,7 @@ def test_typed_formulas_equal_python_bit_for_bit(typed):
 def test_array_formulas_equal_python_bit_for_bit(typed):
     """Spilling STEP_ blocks typed as array formulas equal the Python tables cell by cell."""
     sheet, _, arrays = typed
-    for address, (formula, python) in arrays.items():
+    for address, (_formula, python) in arrays.items():
         got = sheet.getCellRangeByName(address).getDataArray()
         expected = python()
         assert len(got) == len(expected), address

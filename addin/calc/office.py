@@ -37,11 +37,11 @@ class OfficeError(RuntimeError):
 def import_uno() -> ModuleType:
     """The ``uno`` module: importable as is, or from Debian's python3-uno folders (appended to sys.path)."""
     try:
-        import uno  # type: ignore[import-not-found]
+        import uno
     except ImportError:
         sys.path.extend(folder for folder in _UNO_FOLDERS if folder not in sys.path)
         try:
-            import uno  # type: ignore[import-not-found]
+            import uno
         except ImportError:
             raise OfficeError(
                 f"Python {sys.version.split()[0]} ({sys.executable}) cannot import `uno`, LibreOffice's Python "
@@ -170,25 +170,25 @@ class Office:
 def _environment() -> Any:
     """A command environment that approves the extension manager's questions (no dialogs headless)."""
     uno = import_uno()
-    import unohelper  # type: ignore[import-not-found]
-    from com.sun.star.task import XInteractionHandler  # type: ignore[import-not-found]
-    from com.sun.star.ucb import XCommandEnvironment, XProgressHandler  # type: ignore[import-not-found]
+    import unohelper
+    from com.sun.star.task import XInteractionHandler
+    from com.sun.star.ucb import XCommandEnvironment, XProgressHandler
 
     approve = uno.getTypeByName("com.sun.star.task.XInteractionApprove")
 
-    class Handler(unohelper.Base, XInteractionHandler):  # type: ignore[misc]
+    class Handler(unohelper.Base, XInteractionHandler):
         def handle(self, request: Any) -> None:
             for continuation in request.getContinuations():
                 if continuation.queryInterface(approve) is not None:
                     continuation.select()
                     return
 
-    class Progress(unohelper.Base, XProgressHandler):  # type: ignore[misc]
+    class Progress(unohelper.Base, XProgressHandler):
         def push(self, status: Any) -> None: ...
         def update(self, status: Any) -> None: ...
         def pop(self) -> None: ...
 
-    class Environment(unohelper.Base, XCommandEnvironment):  # type: ignore[misc]
+    class Environment(unohelper.Base, XCommandEnvironment):
         def getInteractionHandler(self) -> Any:
             return Handler()
 
