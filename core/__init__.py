@@ -9,6 +9,7 @@ from importlib.metadata import PackageNotFoundError, version
 
 from ._notices import collect_warnings
 from ._warm import warm_up
+from .fourier import FourierAmplitude, fourier_amplitude
 from .inelastic import (
     ConvergenceError,
     ConvergenceWarning,
@@ -23,8 +24,16 @@ from .linear import (
     linear_response,
     period_grid,
 )
-from .measures import arias_intensity, normalised_arias, significant_duration
+from .measures import (
+    GroundMotionMeasures,
+    MeasureWarning,
+    arias_intensity,
+    ground_motion_measures,
+    normalised_arias,
+    significant_duration,
+)
 from .methods import METHODS, Method, resolve_method
+from .processing import ReplayWarning, bandpass, baseline_correct, replay_history
 from .record import ProcessingStep, Record, RecordTextWarning
 from .results import ElasticSpectrum, LinearResponse
 from .synthetic import (
@@ -54,23 +63,31 @@ __all__ = [
     "DuctilitySpectrum",
     "DuctilityTargetWarning",
     "ElasticSpectrum",
+    "FourierAmplitude",
+    "GroundMotionMeasures",
     "InelasticResponse",
     "LENGTH_UNITS",
     "LinearResponse",
     "METHODS",
+    "MeasureWarning",
     "Method",
     "OutputUnits",
     "ProcessingStep",
     "Record",
     "RecordTextWarning",
+    "ReplayWarning",
     "STANDARD_GRAVITY",
     "SubstepWarning",
     "__version__",
     "arias_intensity",
+    "bandpass",
+    "baseline_correct",
     "collect_warnings",
     "ductility_spectrum",
     "elastic_spectrum",
     "filtered_noise",
+    "fourier_amplitude",
+    "ground_motion_measures",
     "inelastic_response",
     "jennings_envelope",
     "kanai_tajimi_psd",
@@ -78,6 +95,7 @@ __all__ = [
     "normalised_arias",
     "output_units",
     "period_grid",
+    "replay_history",
     "resolve_method",
     "significant_duration",
     "synthetic_record",

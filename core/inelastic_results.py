@@ -11,7 +11,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from .methods import Method
-from .results import _span
+from .results import MethodParameters, _span
 
 __all__ = [
     "ConvergenceError",
@@ -47,7 +47,7 @@ class DuctilityTargetWarning(RuntimeWarning):
 
 
 @dataclass(frozen=True, slots=True, eq=False, kw_only=True)
-class InelasticResponse:
+class InelasticResponse(MethodParameters):
     """Response of one yielding oscillator, returned by `inelastic_response`.
 
     Forces are per unit mass [m/s²]; energies per unit mass [m²/s²] in the
@@ -154,15 +154,6 @@ class InelasticResponse:
     retried_steps: int
     tolerance: float
 
-    @property
-    def beta(self) -> float:
-        """Newmark β of `method`."""
-        return self.method.beta
-
-    @property
-    def gamma(self) -> float:
-        """Newmark γ of `method`."""
-        return self.method.gamma
 
     def __repr__(self) -> str:
         return (
@@ -175,7 +166,7 @@ class InelasticResponse:
 
 
 @dataclass(frozen=True, slots=True, eq=False, kw_only=True)
-class DuctilitySpectrum:
+class DuctilitySpectrum(MethodParameters):
     """Constant-ductility spectra, returned by `ductility_spectrum`.
 
     Every 2-D array has shape (len(ductilities), len(periods)); SI units,
@@ -228,15 +219,6 @@ class DuctilitySpectrum:
     dt: float
     max_step_ratio: float
 
-    @property
-    def beta(self) -> float:
-        """Newmark β of `method`."""
-        return self.method.beta
-
-    @property
-    def gamma(self) -> float:
-        """Newmark γ of `method`."""
-        return self.method.gamma
 
     def __repr__(self) -> str:
         n_mu, n_p = self.reduction_factor.shape

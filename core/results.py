@@ -13,11 +13,32 @@ from numpy.typing import NDArray
 
 from .methods import Method
 
-__all__ = ["ElasticSpectrum", "LinearResponse"]
+__all__ = ["ElasticSpectrum", "LinearResponse", "MethodParameters"]
+
+
+class MethodParameters:
+    """Newmark β and γ of a result's `method` as read-only properties (NaN for the exact method).
+
+    A base without slots of its own, shared by every result object that
+    carries a `method`.
+    """
+
+    __slots__ = ()
+    method: Method
+
+    @property
+    def beta(self) -> float:
+        """Newmark β of `method` (NaN for the exact method)."""
+        return self.method.beta
+
+    @property
+    def gamma(self) -> float:
+        """Newmark γ of `method` (NaN for the exact method)."""
+        return self.method.gamma
 
 
 @dataclass(frozen=True, slots=True, eq=False, kw_only=True)
-class LinearResponse:
+class LinearResponse(MethodParameters):
     """Response of one linear oscillator, returned by `linear_response`.
 
     Histories are at the record's sample times; peaks are max |·| over every
@@ -65,15 +86,6 @@ class LinearResponse:
     pseudo_velocity: float
     pseudo_acceleration: float
 
-    @property
-    def beta(self) -> float:
-        """Newmark β of `method` (NaN for the exact method)."""
-        return self.method.beta
-
-    @property
-    def gamma(self) -> float:
-        """Newmark γ of `method` (NaN for the exact method)."""
-        return self.method.gamma
 
     def __repr__(self) -> str:
         return (
@@ -85,7 +97,7 @@ class LinearResponse:
 
 
 @dataclass(frozen=True, slots=True, eq=False, kw_only=True)
-class ElasticSpectrum:
+class ElasticSpectrum(MethodParameters):
     """Elastic response spectra, returned by `elastic_spectrum`.
 
     Every 2-D array has shape (len(dampings), len(periods)); SI units.
@@ -122,15 +134,6 @@ class ElasticSpectrum:
     dt: float
     max_step_ratio: float
 
-    @property
-    def beta(self) -> float:
-        """Newmark β of `method` (NaN for the exact method)."""
-        return self.method.beta
-
-    @property
-    def gamma(self) -> float:
-        """Newmark γ of `method` (NaN for the exact method)."""
-        return self.method.gamma
 
     def __repr__(self) -> str:
         n_d, n_p = self.psa.shape

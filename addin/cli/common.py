@@ -11,6 +11,7 @@ from typing import Any
 from groundstep.addin.common import CAUTION
 from groundstep.addin.result.content import Oscillator, ReportSettings
 from groundstep.core import period_grid
+from groundstep.core.checks import check_hardening, check_integer, check_positive
 from groundstep.core.defaults import DEFAULT_DAMPING
 
 __all__ = [
@@ -58,9 +59,10 @@ def settings_from_options(args: argparse.Namespace, base: ReportSettings | None 
     changes: dict[str, Any] = {}
     if args.periods:
         parts = floats(args.periods, "--periods")
-        if len(parts) != 3 or parts[2] != int(parts[2]):
+        if len(parts) != 3:
             raise UsageError(f"--periods {args.periods!r}: give SHORTEST,LONGEST,COUNT, e.g. 0.02,10,80")
-        changes["periods"] = tuple(float(p) for p in period_grid(parts[0], parts[1], int(parts[2])))
+        count = check_integer(parts[2], f"--periods {args.periods!r}: COUNT", minimum=2)
+        changes["periods"] = tuple(float(p) for p in period_grid(parts[0], parts[1], count))
     if args.dampings:
         changes["dampings"] = tuple(floats(args.dampings, "--dampings"))
     if args.method:
@@ -78,15 +80,13 @@ def settings_from_options(args: argparse.Namespace, base: ReportSettings | None 
                 raise UsageError(
                     f"--oscillator {text!r}: give LABEL:PERIOD, LABEL:PERIOD:DAMPING or LABEL:PERIOD:DAMPING:R"
                 )
-            if len(values) == 3 and not values[2] > 0.0:
-                raise UsageError(f"--oscillator {text!r}: the reduction factor R must be > 0, got {values[2]:g}")
+            if len(values) == 3:
+                check_positive(values[2], f"--oscillator {text!r}: the reduction factor R")
             damping = values[1] if len(values) >= 2 else DEFAULT_DAMPING
             oscillators.append(Oscillator(label.strip(), values[0], damping, values[2] if len(values) == 3 else None))
         changes["oscillators"] = tuple(oscillators)
     if getattr(args, "hardening", None) is not None:
-        if not 0.0 <= args.hardening < 1.0:
-            raise UsageError(f"--hardening {args.hardening:g}: give a post-yield stiffness ratio in [0, 1)")
-        changes["hardening"] = args.hardening
+        changes["hardening"] = check_hardening(args.hardening, "--hardening")
     if getattr(args, "verification_period", None) is not None:
         changes["verification_period"] = args.verification_period
     return replace(base, **changes)

@@ -23,6 +23,7 @@ from typing import Any
 from groundstep.addin.result.content import PROJECT_KEYS, Oscillator, ReportSettings
 from groundstep.addin.worksheet import cells as _cells
 from groundstep.core import Record
+from groundstep.core.checks import check_hardening
 from groundstep.core.defaults import DEFAULT_DAMPING
 from groundstep.core.units import ACCELERATION_UNITS
 
@@ -121,9 +122,7 @@ def settings_from_cells(
     hardening = base.hardening
     hardening_cell = get("hardening")
     if hardening_cell is not None:
-        hardening = _cells.nonnegative(hardening_cell, "the hardening cell", 0.0)
-        if not hardening < 1.0:
-            raise InputError(f"the hardening cell must be a post-yield stiffness ratio in [0, 1), got {hardening:g}")
+        hardening = check_hardening(_cells.number(hardening_cell, "the hardening cell", 0.0), "the hardening cell")
     project = []
     for key in PROJECT_KEYS:
         cell = get(key)

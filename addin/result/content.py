@@ -29,6 +29,7 @@ from groundstep.core import (
     inelastic_response,
     linear_response,
 )
+from groundstep.core.checks import check_hardening, check_positive
 from groundstep.core.defaults import (
     DEFAULT_DAMPING,
     DEFAULT_DAMPINGS,
@@ -423,21 +424,14 @@ def yielding_method(method: Method) -> Method:
 
 
 def _reduction_factor(oscillator: Oscillator) -> float | None:
-    value = oscillator.reduction_factor
-    if value is None:
+    if oscillator.reduction_factor is None:
         return None
-    if isinstance(value, bool) or not isinstance(value, (int, float, np.floating, np.integer)):
-        raise TypeError(f"oscillator {oscillator.label!r}: reduction factor R must be a number, got {value!r}")
-    if not (math.isfinite(value) and value > 0.0):
-        raise ValueError(f"oscillator {oscillator.label!r}: reduction factor R must be a number > 0, got {value!r}")
-    return float(value)
+    return check_positive(oscillator.reduction_factor, f"oscillator {oscillator.label!r}: reduction factor R")
 
 
 def _yielding_responses(record: Record, settings: ReportSettings, method: Method):
     """The oscillators that carry R, and their ``inelastic_response`` results."""
-    hardening = settings.hardening
-    if isinstance(hardening, bool) or not isinstance(hardening, (int, float)) or not 0.0 <= hardening < 1.0:
-        raise ValueError(f"hardening (post-yield stiffness ratio α) must be a number in [0, 1), got {hardening!r}")
+    check_hardening(settings.hardening, "hardening (post-yield stiffness ratio α)")
     used = yielding_method(method)
     chosen = [o for o in settings.oscillators if _reduction_factor(o) is not None]
     results = [

@@ -24,6 +24,7 @@ from typing import Any, NamedTuple
 import numpy as np
 from numpy.typing import NDArray
 
+from groundstep.core.checks import percentage_hint
 from groundstep.core.units import normalise_unit
 
 #: The error values a spreadsheet cell can hold, as Excel spells them.
@@ -339,8 +340,9 @@ def _number_in(cell: Any, where: str) -> float:
 def _check_damping(ratio: float, what: str, sep: str) -> float:
     if ratio < 0.0:
         raise CellError(f"{what} must be >= 0, got {ratio:g}")
-    if 1.0 <= ratio <= 100.0:
-        raise CellError(f"{what}{sep}{ratio:g} looks like a percentage: enter {ratio / 100.0:g} or {ratio:g}%")
+    hint = percentage_hint(ratio)
+    if hint:  # a cell also takes the percentage itself as text
+        raise CellError(f"{what}{sep}{hint} or {ratio:g}%")
     if ratio >= 1.0:
         raise CellError(f"{what} must be a ratio of critical damping in [0, 1), got {ratio:g}")
     return ratio
