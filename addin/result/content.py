@@ -198,6 +198,7 @@ def build_report(
         # measures warn of an all-zero record or a cut mean-period band; the values say so (NaN, 0)
         measures = ground_motion_measures(record)
         raw_measures = ground_motion_measures(raw) if steps else None
+    shift = _time_shift(raw, record)
     fourier = _fourier_blocks(record, out)
     verification = _verification_oscillator(record, settings, method)
     layout = sheets.result_layout(
@@ -209,13 +210,13 @@ def build_report(
     table = spectrum_table(spectrum, out)
     content: dict[str, dict[str, Any]] = {
         "project": {key: project.get(key, "") for key in PROJECT_KEYS},
-        "record_summary": _record_summary(record, measures, out),
+        "record_summary": _record_summary(raw, measures, out),
         "key_results": _key_results(spectrum, table),
         "check": {},
         "record": {"record_unit": record.unit, "dt": record.dt, "unit_factor": ACCELERATION_UNITS[record.unit]},
-        "record_table": _record_columns(record, out),
-        "measures": _measures_block(measures, "measure_", out),
-        "arias_table": _arias_columns(measures),
+        "record_table": _record_columns(record, out, shift),
+        "measures": _measures_block(measures, "measure_", out, shift),
+        "arias_table": _arias_columns(measures, shift),
         **fourier,
         "processing_table": {"step": [step.describe() for step in steps]},
         "spectra_table": _spectra_columns(table),
@@ -226,8 +227,8 @@ def build_report(
         "settings": _settings_block(settings, spectrum, method),
     }
     if raw_measures is not None:
-        content["raw_table"] = _record_columns(raw, out)
-        content["raw_measures"] = _measures_block(raw_measures, "raw_measure_", out)
+        content["raw_table"] = _record_columns(raw, out, 0.0)
+        content["raw_measures"] = _measures_block(raw_measures, "raw_measure_", out, 0.0)
     if yielding:
         content["yielding_summary"] = _yielding_summary(yielding_oscillators, yielding, out)
     return Report(layout, content, _headline(record, spectrum, out, content, verification))
@@ -255,11 +256,22 @@ def processed_record(record: Record, settings: ReportSettings) -> Record:
     return record
 
 
-def _record_summary(record: Record, measures: GroundMotionMeasures, out: OutputUnits) -> dict[str, Any]:
+def _time_shift(raw: Record, record: Record) -> float:
+    """Time [s] of the processed record's first sample on the raw record's time axis (0 or negative).
+
+    `bandpass` keeps its zero pads, n_pad samples at each end, so the first
+    sample as read is sample n_pad of the result (its documented layout);
+    the sheets count time from that sample.
+    """
+    return -((record.n - raw.n) // 2) * record.dt
+
+
+def _record_summary(raw: Record, measures: GroundMotionMeasures, out: OutputUnits) -> dict[str, Any]:
+    """Name, samples and duration of the record as read; the peaks and Arias values of the one analysed."""
     return {
-        "record_name": record.name or "(unnamed)",
-        "samples": record.n,
-        "duration": record.duration,
+        "record_name": raw.name or "(unnamed)",
+        "samples": raw.n,
+        "duration": raw.duration,
         "pga": out.acceleration_from_si(measures.pga),
         "pgv": out.velocity_from_si(measures.pgv),
         "pgd": out.length_from_si(measures.pgd),
@@ -268,18 +280,20 @@ def _record_summary(record: Record, measures: GroundMotionMeasures, out: OutputU
     }
 
 
-def _record_columns(record: Record, out: OutputUnits) -> dict[str, list[float]]:
+def _record_columns(record: Record, out: OutputUnits, shift: float) -> dict[str, list[float]]:
     return {
-        "time": record.time.tolist(),
+        "time": (record.time + shift).tolist(),
         "accel": record.accel_in(record.unit).tolist(),
         "velocity": np.asarray(out.velocity_from_si(record.ground_velocity())).tolist(),
         "displacement": np.asarray(out.length_from_si(record.ground_displacement())).tolist(),
     }
 
 
-def _measures_block(measures: GroundMotionMeasures, prefix: str, out: OutputUnits) -> dict[str, Any]:
-    """The Measures sheet's fields in the report units (NaN, e.g. the times of an all-zero record, left blank)."""
-    convert = {"acceleration": out.acceleration_from_si, "velocity": out.velocity_from_si, "length": out.length_from_si}
+def _measures_block(measures: GroundMotionMeasures, prefix: str, out: OutputUnits, shift: float) -> dict[str, Any]:
+    """The Measures sheet's fields in the report units, times of occurrence moved by `shift` [s]
+    (NaN, e.g. the times of an all-zero record, left blank)."""
+    convert = {"acceleration": out.acceleration_from_si, "velocity": out.velocity_from_si, "length": out.length_from_si,
+               "instant": lambda t: t + shift}  # fmt: skip
     values: dict[str, Any] = {}
     for key, _, kind, _, _ in sheets.MEASURE_FIELDS:
         value = float(convert[kind](measures[key]) if kind in convert else measures[key])
@@ -287,12 +301,12 @@ def _measures_block(measures: GroundMotionMeasures, prefix: str, out: OutputUnit
     return values
 
 
-def _arias_columns(measures: GroundMotionMeasures) -> dict[str, list[Any]]:
+def _arias_columns(measures: GroundMotionMeasures, shift: float) -> dict[str, list[Any]]:
     build_up = measures.arias_build_up
-    time = np.arange(build_up.size) * measures.dt
+    time = np.arange(build_up.size) * measures.dt  # the core's own times, from the first sample analysed
     inside = (time >= measures.d5_95_start) & (time <= measures.d5_95_end)  # all False when the times are NaN
     return {
-        "time": time.tolist(),
+        "time": (time + shift).tolist(),
         "build_up": build_up.tolist(),
         "within_d5_95": [value if flag else None for value, flag in zip(build_up.tolist(), inside.tolist())],
     }

@@ -53,31 +53,32 @@ MEASURES = "Measures"
 CHART_POINTS = 2000
 #: The ground-motion measures of the Measures sheet, in order: (key of
 #: ``groundstep.core.GroundMotionMeasures``, label, kind of unit, number format, definition and source).
+#: Kind "instant" is a time of occurrence [s] (shifted with the time axis), "time" a duration or period [s].
 MEASURE_FIELDS: tuple[tuple[str, str, str, str, str], ...] = (
     ("pga", "Peak ground acceleration PGA", "acceleration", SCIENTIFIC, "largest |a| at the samples"),
-    ("pga_time", "  at time", "time", FIXED3, "first sample where it occurs"),
+    ("pga_time", "  at time", "instant", FIXED3, "first sample where it occurs"),
     ("pgv", "Peak ground velocity PGV", "velocity", SCIENTIFIC,
      "velocity by the trapezoidal rule, exact for a(t) linear between samples, from rest"),
-    ("pgv_time", "  at time", "time", FIXED3, "first sample where it occurs"),
+    ("pgv_time", "  at time", "instant", FIXED3, "first sample where it occurs"),
     ("pgd", "Peak ground displacement PGD", "length", SCIENTIFIC,
      "exact displacement of a(t) linear between samples, from rest"),
-    ("pgd_time", "  at time", "time", FIXED3, "first sample where it occurs"),
+    ("pgd_time", "  at time", "instant", FIXED3, "first sample where it occurs"),
     ("arias_intensity", "Arias intensity I_A", "arias", SCIENTIFIC,
      "Arias (1970), in Seismic Design for Nuclear Power Plants, MIT Press: I_A = π/(2g)·∫a² dt"),
     ("d5_75", "Significant duration D5-75", "time", FIXED3,
      "Trifunac & Brady (1975), BSSA 65(3):581-626: 5 % to 75 % of I_A"),
-    ("d5_75_start", "  from", "time", FIXED3, "time of 5 % of I_A"),
-    ("d5_75_end", "  to", "time", FIXED3, "time of 75 % of I_A"),
+    ("d5_75_start", "  from", "instant", FIXED3, "time of 5 % of I_A"),
+    ("d5_75_end", "  to", "instant", FIXED3, "time of 75 % of I_A"),
     ("d5_95", "Significant duration D5-95", "time", FIXED3,
      "Trifunac & Brady (1975), BSSA 65(3):581-626: 5 % to 95 % of I_A"),
-    ("d5_95_start", "  from", "time", FIXED3, "time of 5 % of I_A"),
-    ("d5_95_end", "  to", "time", FIXED3, "time of 95 % of I_A"),
+    ("d5_95_start", "  from", "instant", FIXED3, "time of 5 % of I_A"),
+    ("d5_95_end", "  to", "instant", FIXED3, "time of 95 % of I_A"),
     ("cav", "Cumulative absolute velocity CAV", "velocity", SCIENTIFIC,
      "EPRI (1988) NP-5930: ∫|a| dt over the whole record (no threshold, no windows)"),
     ("bracketed_duration", "Bracketed duration", "time", FIXED3,
      "Bolt (1973), 5th World Conf. Earthquake Eng.: first to last |a| above the threshold"),
-    ("bracketed_start", "  from", "time", FIXED3, "first crossing of the threshold"),
-    ("bracketed_end", "  to", "time", FIXED3, "last crossing of the threshold"),
+    ("bracketed_start", "  from", "instant", FIXED3, "first crossing of the threshold"),
+    ("bracketed_end", "  to", "instant", FIXED3, "last crossing of the threshold"),
     ("bracket_threshold", "  threshold", "acceleration", SCIENTIFIC, "0.05 g, common practice"),
     ("mean_period", "Mean period Tm", "time", FIXED4,
      "Rathje, Abrahamson & Bray (1998), J. Geotech. Geoenviron. Eng. 124(2): FFT amplitudes, 0.25-20 Hz"),
@@ -242,8 +243,8 @@ def _record(n_samples, unit, length_unit, velocity_unit, n_raw) -> Sheet:
                     RECORD_FIRST_ROW - 2, 7, columns(GENERAL), n_raw)  # fmt: skip
         blocks += (raw,)
         charts += _record_charts("raw_table", "As read: ground", 22, unit, length_unit, velocity_unit)
-        note = ("Processed as listed on the Audit sheet. A band-pass record keeps its zero pads: its time 0 is "
-                "the start of the front pad, before the first sample as read.")  # fmt: skip
+        note = ("Processed as listed on the Audit sheet. A band-pass record keeps its zero pads (Boore 2005): "
+                "times count from the first sample as read, so the front pad has negative times.")  # fmt: skip
     return Sheet(RECORD, "Ground acceleration record", blocks, charts, note=note)
 
 
@@ -261,7 +262,8 @@ def _record_charts(table: str, prefix: str, column: int, unit, length_unit, velo
 
 
 def _measures(n_samples, unit, length_unit, velocity_unit, processed, n_frequencies, n_chart_frequencies) -> Sheet:
-    units = {"acceleration": unit, "velocity": velocity_unit, "length": length_unit, "time": "s", "arias": "m/s"}
+    units = {"acceleration": unit, "velocity": velocity_unit, "length": length_unit, "time": "s", "instant": "s",
+             "arias": "m/s"}  # fmt: skip
 
     def fields(prefix: str, with_source: bool) -> tuple[Field, ...]:
         return tuple(
@@ -270,14 +272,14 @@ def _measures(n_samples, unit, length_unit, velocity_unit, processed, n_frequenc
         )
 
     title = "Ground-motion measures" + (" of the processed record" if processed else "")
-    blocks: tuple[Fields | Table | FormulaTable, ...] = (
+    measures: tuple[Fields | Table | FormulaTable, ...] = (
         Fields("measures", title, 3, 1, fields("measure_", True), checked=True),
     )
     if processed:
-        blocks += (Fields("raw_measures", "Of the record as read (before processing)", 3, 6,
-                          fields("raw_measure_", False), checked=True),)  # fmt: skip
+        measures += (Fields("raw_measures", "Of the record as read (before processing)", 3, 6,
+                            fields("raw_measure_", False), checked=True),)  # fmt: skip
     top = 5 + len(MEASURE_FIELDS) + 2
-    blocks += (
+    tables: tuple[Fields | Table | FormulaTable, ...] = (
         Table(
             "arias_table", "Arias intensity build-up (Arias 1970)", top, 1,
             (
@@ -302,6 +304,7 @@ def _measures(n_samples, unit, length_unit, velocity_unit, processed, n_frequenc
             n_chart_frequencies, checked=True,
         ),
     )  # fmt: skip
+    blocks = tables + measures  # the fields come last so that their label column keeps its width
     right = 11
     charts = (
         Chart(
@@ -316,8 +319,9 @@ def _measures(n_samples, unit, length_unit, velocity_unit, processed, n_frequenc
             log_x=True, log_y=True,
         ),
     )  # fmt: skip
-    note = ("Times are measured from the first sample of the record analysed. Velocity and length units "
-            f"match the record's unit ({velocity_unit}, {length_unit}); Arias intensity in m/s.")  # fmt: skip
+    note = ("Times count from the first sample as read (the front pad of a filtered record has negative times). "
+            f"Velocities and lengths in {velocity_unit} and {length_unit}, matching the record's unit; "
+            "Arias intensity in m/s.")  # fmt: skip
     return Sheet(MEASURES, "Ground-motion measures", blocks, charts, note=note)
 
 
