@@ -125,7 +125,7 @@ def settings_from_cells(
     hardening_cell = get("hardening")
     if hardening_cell is not None:
         hardening = check_hardening(_cells.number(hardening_cell, "the hardening cell", 0.0), "the hardening cell")
-    processing = {}
+    processing: dict[str, Any] = {}
     for key, what in (("baseline_order", "the baseline-order cell"), ("low_hz", "the low-corner cell"),
                       ("high_hz", "the high-corner cell")):  # fmt: skip
         cell = get(key)
