@@ -333,8 +333,12 @@ def test_fill_reads_the_calculation_package_template(tmp_path, capsys):
     result = openpyxl.load_workbook(out)
     assert result["Summary"]["B5"].value == "Pier 4 retrofit (invented)"
     assert result["Summary"]["B12"].value == "paste test"
-    periods = [row[0].value for row in result["Spectra"]["A5:A44"]]  # 41 template periods less T = 0
-    assert periods[0] == 0.02 and len([p for p in periods if p]) == 40
+    periods = [row[0].value for row in result["Spectra"]["A5:A45"]]  # the template's 41 periods, T = 0 kept
+    assert periods[0] == 0 and periods[1] == 0.02 and len(periods) == 41
+    # T = 0 is a rigid oscillator: PSA = PGA (closed form: u = 0 relative, total acceleration = ground's)
+    psa_at_zero = next(c for c in result["Spectra"][4] if result["Spectra"].cell(4, c.column).value and
+                       str(result["Spectra"].cell(4, c.column).value).startswith("PSA")).column  # fmt: skip
+    assert result["Spectra"].cell(5, psa_at_zero).value == pytest.approx(np.max(np.abs(record.accel_in("g"))), rel=1e-15)
     # R read from the filled template: 12 oscillators, 11 with R (the template's 4 except the two edits)
     names = result.defined_names
     sheet, ref = names["gs_yielding_table_reduction_factor"].attr_text.split("!")

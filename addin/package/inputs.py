@@ -15,6 +15,7 @@ worksheet functions and name the range and row.
 
 from __future__ import annotations
 
+import datetime
 import io
 import os
 import re
@@ -89,6 +90,8 @@ def settings_from_cells(
         cell = get("dt")
         if cell is None:
             raise InputError("the workbook has no named time-step cell (input_dt); pass --dt SECONDS")
+        if _blank(cell):
+            raise InputError("the time-step cell (input_dt) is empty: enter the time step in seconds, or pass --dt SECONDS")
         dt = _cells.positive(cell, "the time-step cell", "s")
     if unit is None:  # never assumed: a wrong unit scales every result
         cell = get("unit")
@@ -137,10 +140,10 @@ def settings_from_cells(
     for key in PROJECT_KEYS:
         cell = get(key)
         if cell is not None:
-            project.append((key, _cells.text(cell, f"the {key} cell", "")))
+            project.append((key, _cells.text(_as_text(cell), f"the {key} cell", "")))
     settings = ReportSettings(
-        # T = 0 (the PGA) is on the Summary sheet; a logarithmic period axis cannot show it
-        periods=tuple(float(p) for p in _cells.periods(periods, "the period range") if p > 0.0)
+        # T = 0 (rigid: PSA = PGA) stays in the spectrum table; the charts leave it out
+        periods=tuple(float(p) for p in _cells.periods(periods, "the period range"))
         if periods is not None
         else base.periods,
         dampings=tuple(float(d) for d in _cells.dampings(dampings, "the damping range"))
@@ -203,7 +206,7 @@ def read_input_workbook(
             raise InputError(f"{file.name}: no sheet {sheet_name!r}; the sheets are {book.sheetnames}")
         found = book[sheet_name][reference]
         if not isinstance(found, tuple):
-            return found.value
+            return [[found.value]]  # one cell as a spreadsheet passes it (a blank cell is not a missing name)
         if found and not isinstance(found[0], tuple):  # one row or one column given as A1:A1 style
             found = (found,)
         return [[cell.value for cell in row] for row in found]
@@ -222,6 +225,7 @@ def read_input_workbook(
                 return cells(sheet_name, reference.replace("$", ""))
         return None
 
+    _refuse_samples_below_the_range(book, get_destination=lambda key: _destination(book, key))
     source = file.name
     record_values = None
     if record is not None:
@@ -278,3 +282,53 @@ def _labels(labels: Any, count: int) -> list[str]:
     texts = texts[-count:] if len(texts) > count else texts  # a header label above the list is dropped
     return [texts[i] if i < len(texts) and texts[i] else f"Oscillator {i + 1}" for i in range(count)]
 
+
+def _blank(cell: Any) -> bool:
+    """True for an empty cell, passed alone or as a one-cell range."""
+    while isinstance(cell, (list, tuple)) and len(cell) == 1:
+        cell = cell[0]
+    return cell is None or (isinstance(cell, str) and not cell.strip())
+
+
+def _destination(book: Any, key: str) -> tuple[str, str] | None:
+    """(sheet, reference) of input `key`'s defined name, or None."""
+    for name in lookup_names(key):
+        defined = book.defined_names.get(name)
+        if defined is not None:
+            sheet_name, reference = next(iter(defined.destinations))
+            return sheet_name.replace("''", "'"), reference.replace("$", "")
+    return None
+
+
+def _refuse_samples_below_the_range(book: Any, get_destination: Callable[[str], Any]) -> None:
+    """A record longer than its named range is refused, never cut (the template holds `RECORD_ROWS` samples)."""
+    found = get_destination("record")
+    if found is None or found[0] not in book.sheetnames:
+        return
+    sheet_name, reference = found
+    sheet = book[sheet_name]
+    match = re.fullmatch(r"([A-Za-z]{1,3})(\d+):([A-Za-z]{1,3})(\d+)", reference)
+    if match is None or match.group(1) != match.group(3):
+        return
+    column, last = match.group(1), int(match.group(4))
+    if sheet.max_row <= last:
+        return
+    below = next((c.row for (c,) in sheet[f"{column}{last + 1}:{column}{sheet.max_row}"] if c.value is not None), None)
+    if below is not None:
+        raise InputError(
+            f"{sheet_name}!{column}{below} holds a sample below the record range {sheet_name}!{reference} "
+            f"(input_record ends at row {last}; at most {last - 1:,} samples below the heading): the record "
+            "would be cut. Extend the input_record name to the last sample, or pass --record SHEET!RANGE"
+        )
+
+
+def _as_text(cell: Any) -> Any:
+    """A date cell as ISO text (``2026-03-01``); other cells as they are."""
+    inner = cell
+    while isinstance(inner, (list, tuple)) and len(inner) == 1:
+        inner = inner[0]
+    if isinstance(inner, datetime.datetime):
+        return inner.date().isoformat()
+    if isinstance(inner, datetime.date):
+        return inner.isoformat()
+    return cell

@@ -67,7 +67,7 @@ __all__ = [
 #: sub-stepping limit, so the sheet replays exactly the steps groundstep takes.
 _VERIFY_STEP_RATIO = DEFAULT_STEP_RATIO
 #: Keys of the Summary sheet's project block, in order.
-PROJECT_KEYS = ("project", "site", "structure", "engineer", "scenario")
+PROJECT_KEYS = ("project", "site", "structure", "engineer", "scenario", "project_number", "checker", "date")
 
 
 def _default_periods() -> tuple[float, ...]:
@@ -193,6 +193,10 @@ def build_report(
     with collect_warnings():
         spectrum = elastic_spectrum(record, settings.periods, settings.dampings, method,
                                     max_step_ratio=settings.max_step_ratio)  # fmt: skip
+        # the self-check beside each ordinate: the exact piecewise-linear solution, peaks read as often
+        exact = spectrum if method.name == "exact" else elastic_spectrum(
+            record, settings.periods, settings.dampings, "exact", max_step_ratio=settings.max_step_ratio
+        )
         peaks = [
             linear_response(record, o.period, o.damping, method, max_step_ratio=settings.max_step_ratio)
             for o in settings.oscillators
@@ -211,10 +215,12 @@ def build_report(
         n_frequencies=len(fourier["fourier_table"]["frequency"]),
         n_chart_frequencies=len(fourier["fourier_chart_table"]["frequency"]), n_steps=len(steps),
         n_findings=len(findings["check"]),
+        n_rigid=int(np.argmax(spectrum.periods > 0.0)) if spectrum.periods.max() > 0.0 else spectrum.periods.size,
     )  # fmt: skip
     table = spectrum_table(spectrum, out)
     content: dict[str, dict[str, Any]] = {
-        "project": {key: project.get(key, "") for key in PROJECT_KEYS},
+        "project": {key: project.get(key, "") for key in PROJECT_KEYS[:5]},
+        "review": {key: project.get(key, "") for key in PROJECT_KEYS[5:]},
         "record_summary": _record_summary(raw, measures, out),
         "key_results": _key_results(spectrum, table),
         "check": {},
@@ -225,11 +231,14 @@ def build_report(
         "arias_table": _arias_columns(measures, shift),
         **fourier,
         "processing_table": {"step": [step.describe() for step in steps]},
-        "spectra_table": _spectra_columns(table),
+        "spectra_table": _spectra_columns(table, spectrum, exact),
         "peaks_table": _peaks_table(settings.oscillators, peaks, out),
         "yielding_table": _yielding_table(yielding_oscillators, yielding, out, settings.hardening, method),
         **_verification_blocks(record, *verification),
-        "audit": _audit(raw, command, source, created),
+        "audit": {
+            **_audit(raw, command, source, created),
+            "reviewed": " / ".join(project.get(key, "") or "-" for key in PROJECT_KEYS[5:]),
+        },
         "settings": _settings_block(settings, spectrum, method),
     }
     if raw_measures is not None:
@@ -340,11 +349,16 @@ def _fourier_blocks(record: Record, out: OutputUnits) -> dict[str, dict[str, lis
     }
 
 
-def _spectra_columns(table: dict[str, Any]) -> dict[str, Any]:
+def _spectra_columns(table: dict[str, Any], spectrum: ElasticSpectrum, exact: ElasticSpectrum) -> dict[str, Any]:
+    """The spectra, and beside each damping the relative difference of PSA from the exact solution, flagged."""
     columns: dict[str, Any] = {"period": table["periods"]}
+    with np.errstate(divide="ignore", invalid="ignore"):
+        difference = np.where(exact.psa > 0.0, spectrum.psa / exact.psa - 1.0, 0.0)
     for i in range(len(table["dampings"])):
         for quantity in ("sd", "psv", "psa", "sa"):
             columns[f"{quantity}_{i}"] = table[quantity][i]
+        columns[f"exact_{i}"] = difference[i].tolist()
+        columns[f"exact_flag_{i}"] = ["yes" if abs(d) > sheets.EXACT_TOLERANCE else "" for d in difference[i]]
     return columns
 
 

@@ -161,6 +161,7 @@ class Chart:
     row: int
     column: int
     log_x: bool = False
+    skip_rows: int = 0
     log_y: bool = False
     width_cm: float = 16.0
     height_cm: float = 8.5

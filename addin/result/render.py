@@ -76,8 +76,8 @@ def render(workbook: lay.WorkbookLayout, content: dict[str, dict[str, Any]], wri
             _define_names(sheet, block, writer)
         for chart in sheet.charts:
             table = next(b for b in sheet.blocks if b.key == chart.table)
-            x = _column_range(sheet.name, table, chart.x)
-            series = [(title, _column_range(sheet.name, table, key)) for key, title in chart.series]
+            x = _column_range(sheet.name, table, chart.x, chart.skip_rows)
+            series = [(title, _column_range(sheet.name, table, key, chart.skip_rows)) for key, title in chart.series]
             writer.add_chart(sheet.name, chart, x, series)
 
 
@@ -167,10 +167,11 @@ def _define_names(sheet: lay.Sheet, block, writer: SheetWriter) -> None:
             writer.define_name(f"{lay.NAME_PREFIX}{block.key}_{column.key}", sheet.name, reference)
 
 
-def _column_range(sheet: str, block, key: str) -> SeriesRange:
+def _column_range(sheet: str, block, key: str, skip: int = 0) -> SeriesRange:
     index = next(i for i, c in enumerate(block.columns) if c.key == key)
     first = block.row + 2
-    return SeriesRange(sheet, block.column + index, first, first + max(block.rows, 1) - 1)
+    last = first + max(block.rows, 1) - 1
+    return SeriesRange(sheet, block.column + index, min(first + skip, last), last)
 
 
 def _safe(value: Any) -> Any:

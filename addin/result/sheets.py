@@ -29,6 +29,7 @@ from .layout import (
 
 __all__ = [
     "AUDIT",
+    "EXACT_TOLERANCE",
     "CHART_POINTS",
     "MEASURES",
     "MEASURE_FIELDS",
@@ -94,6 +95,10 @@ YIELDING_TITLE = "Yielding oscillators (bilinear hysteresis; strength fy = F_el 
 #: Relative tolerance of the Verification sheet: the same recurrence evaluated in another
 #: order of floating-point operations; 2000 steps of a damped oscillator lose far fewer digits.
 VERIFY_TOLERANCE = 1e-9
+#: Relative difference of a spectrum's PSA from the exact piecewise-linear solution
+#: (Nigam & Jennings 1969) above which the Spectra sheet flags the ordinate: the 1 %
+#: the yielding results are held to (``core.defaults.DEFAULT_YIELDING_STEP_RATIO``).
+EXACT_TOLERANCE = 0.01
 
 
 def damping_label(damping: float) -> str:
@@ -115,6 +120,7 @@ def result_layout(
     n_chart_frequencies: int = 0,
     n_steps: int = 0,
     n_findings: int = 1,
+    n_rigid: int = 0,
 ) -> WorkbookLayout:
     """The result workbook's layout for the given sizes and units.
 
@@ -140,6 +146,9 @@ def result_layout(
         frequencies) and of its chart table (at most `CHART_POINTS`).
     n_steps : int, default 0
         Processing steps listed on the Audit sheet.
+    n_rigid : int, default 0
+        Leading spectrum periods equal to 0 (rigid: PSA = PGA): kept in the
+        table, left out of the charts (a logarithmic axis cannot show 0).
     n_findings : int, default 1
         Rows of the Summary's plausibility notes (``core.plausibility``; one
         row saying "none" when there is nothing to note).
@@ -149,7 +158,7 @@ def result_layout(
         (
             _summary(dampings, unit, length_unit, velocity_unit, n_yielding, n_findings),
             _record(n_samples, unit, length_unit, velocity_unit, n_raw),
-            _spectra(n_periods, dampings, unit, length_unit, velocity_unit),
+            _spectra(n_periods, dampings, unit, length_unit, velocity_unit, n_rigid),
             _peaks(n_oscillators, unit, length_unit, velocity_unit, n_yielding),
             _measures(n_samples, unit, length_unit, velocity_unit, n_raw > 0, n_frequencies, n_chart_frequencies),
             _verification(n_samples),
@@ -168,6 +177,10 @@ def _summary(dampings, unit, length_unit, velocity_unit, n_yielding, n_findings)
             Field("engineer", "Prepared by"),
             Field("scenario", "Scenario"),
         ),
+    )  # fmt: skip
+    review = Fields(
+        "review", "Calculation record", 4, 5,
+        (Field("project_number", "Project number"), Field("checker", "Checked by"), Field("date", "Date")),
     )  # fmt: skip
     record = Fields(
         "record_summary", "Record", 11, 1,
@@ -200,7 +213,7 @@ def _summary(dampings, unit, length_unit, velocity_unit, n_yielding, n_findings)
         (Field("check_status", "Verification sheet (formulas replaying the recurrence)"),),
         formulas=(("check_status", f"={VERIFICATION}!{{verification_overall}}"),),
     )  # fmt: skip
-    blocks: tuple[Fields | Table | FormulaTable, ...] = (project, record, key, check)
+    blocks: tuple[Fields | Table | FormulaTable, ...] = (project, review, record, key, check)
     if n_yielding:
         yielding = Fields(
             "yielding_summary", f"Yielding oscillators ({PEAKS} sheet)", 27 + len(dampings), 1,
@@ -337,7 +350,7 @@ def _measures(n_samples, unit, length_unit, velocity_unit, processed, n_frequenc
     return Sheet(MEASURES, "Ground-motion measures", blocks, charts, note=note)
 
 
-def _spectra(n_periods, dampings, unit, length_unit, velocity_unit) -> Sheet:
+def _spectra(n_periods, dampings, unit, length_unit, velocity_unit, n_rigid=0) -> Sheet:
     columns = [Column("period", "Period", "s", FIXED4, 10.0)]
     for index, damping in enumerate(dampings):
         label = damping_label(damping)
@@ -346,6 +359,8 @@ def _spectra(n_periods, dampings, unit, length_unit, velocity_unit) -> Sheet:
             Column(f"psv_{index}", f"PSV {label}", velocity_unit, SCIENTIFIC, 17.0),
             Column(f"psa_{index}", f"PSA {label}", unit, SCIENTIFIC, 17.0),
             Column(f"sa_{index}", f"SA {label}", unit, SCIENTIFIC, 17.0),
+            Column(f"exact_{index}", f"PSA vs exact (Nigam & Jennings 1969) {label}", "-", SCIENTIFIC, 17.0),
+            Column(f"exact_flag_{index}", f"Above {EXACT_TOLERANCE:.0%}?", "", TEXT, 10.0),
         ]
     table = Table("spectra_table", "Elastic response spectra", 3, 1, tuple(columns), n_periods, checked=True)
     right = len(columns) + 2
@@ -353,7 +368,7 @@ def _spectra(n_periods, dampings, unit, length_unit, velocity_unit) -> Sheet:
         Chart(
             f"{quantity}_chart", title, "spectra_table", "period",
             tuple((f"{quantity}_{i}", damping_label(d)) for i, d in enumerate(dampings)),
-            "Period [s] (logarithmic)", axis, 3 + offset, right, log_x=True,
+            "Period [s] (logarithmic)", axis, 3 + offset, right, log_x=True, skip_rows=n_rigid,
         )
         for quantity, title, axis, offset in (
             ("psa", "Pseudo-spectral acceleration", f"PSA [{unit}]", 0),
@@ -508,6 +523,7 @@ def _audit(n_steps: int) -> Sheet:
                 "", TEXT,
             ),
             Field("record_source", "Record source", "", TEXT),
+            Field("reviewed", "Project number / checked by / date", "", TEXT),
             Field("caution", "Caution", "", TEXT),
         ),
     )  # fmt: skip
