@@ -110,13 +110,13 @@ def test_charts_are_native_scatter_charts_with_log_period_axis(made):
     assert {"Ground acceleration", "Pseudo-spectral acceleration", "Spectral displacement"} <= set(charts)
     log, series = charts["Pseudo-spectral acceleration"]
     assert log == "10"
-    # 7 periods from row 5; column groups of 4 (SD, PSV, PSA, SA) per damping after the period column
+    # 7 periods from row 5; column groups of 6 (SD, PSV, PSA, SA, PSA vs exact, flag) per damping
     assert series == [
         ("ζ = 0.02", "'Spectra'!$A$5:$A$11", "'Spectra'!$D$5:$D$11"),
-        ("ζ = 0.05", "'Spectra'!$A$5:$A$11", "'Spectra'!$H$5:$H$11"),
+        ("ζ = 0.05", "'Spectra'!$A$5:$A$11", "'Spectra'!$J$5:$J$11"),
     ]
     log, series = charts["Spectral displacement"]
-    assert log == "10" and [y for _, _, y in series] == ["'Spectra'!$B$5:$B$11", "'Spectra'!$F$5:$F$11"]
+    assert log == "10" and [y for _, _, y in series] == ["'Spectra'!$B$5:$B$11", "'Spectra'!$H$5:$H$11"]
     log, series = charts["Ground acceleration"]
     assert log is None and series[0][2] == "'Record'!$B$9:$B$309"
 

@@ -84,7 +84,7 @@ def settings_from_options(args: argparse.Namespace, base: ReportSettings | None 
             label, *numbers = text.split(":")
             if any(not part.strip() for part in numbers[:2]):  # LABEL:PERIOD::R is not allowed: say the damping
                 numbers = []
-            values = floats(",".join(numbers), f"--oscillator {text!r}", percent=True)
+            values = floats(",".join(numbers), f"--oscillator {label.strip()!r}:", percent=True)
             if not label.strip() or len(values) not in (1, 2, 3) or len(numbers) != len(values):
                 raise UsageError(
                     f"--oscillator {text!r}: give LABEL:PERIOD, LABEL:PERIOD:DAMPING or LABEL:PERIOD:DAMPING:R"
@@ -129,8 +129,8 @@ def floats(text: str, option: str, *, percent: bool = False) -> list[float]:
         try:
             found.append(float(part) * scale)
         except ValueError:
-            raise UsageError(f"{option}: {part!r} is not a number (give comma-separated numbers"
-                             + (", e.g. 0.05 or 5%)" if percent else ")")) from None  # fmt: skip
+            raise UsageError(f"{option} {text!r}: expected comma-separated numbers; {part!r} is not a number"
+                             + (" (e.g. 0.05 or 5%)" if percent else "")) from None  # fmt: skip
     return found
 
 
