@@ -249,3 +249,19 @@ def test_fill_open_book_reads_reduction_factors():
     assert result.content["peaks_table"]["reduction_factor"] == [4.0, None, 1.5]
     yielding_title = book.sheets["Peaks"].cells[(9, 1)]  # 3 oscillators: the yielding table starts on row 9
     assert yielding_title.startswith("Yielding oscillators")
+
+
+def test_live_writer_sets_up_pages_through_excel_page_setup():
+    """set_page fits to one page wide, sets landscape, print titles and freezes panes through the COM members."""
+    from types import SimpleNamespace
+
+    from groundstep.addin.result.layout import PageSetup
+    from groundstep.addin.result.live_writer import XlwingsWriter
+
+    setup, window = SimpleNamespace(), SimpleNamespace()
+    sheet = SimpleNamespace(api=SimpleNamespace(PageSetup=setup), activate=lambda: None)
+    book = SimpleNamespace(sheets={"Record": sheet}, app=SimpleNamespace(api=SimpleNamespace(ActiveWindow=window)))
+    XlwingsWriter(book, {}).set_page("Record", PageSetup(landscape=True, title_rows=(8, 8), freeze=(9, 1)))
+    # Excel's constants: xlLandscape = 2; FitToPagesTall False = as many pages as needed
+    assert (setup.Orientation, setup.Zoom, setup.FitToPagesWide, setup.FitToPagesTall) == (2, False, 1, False)
+    assert setup.PrintTitleRows == "$8:$8" and (window.SplitRow, window.SplitColumn, window.FreezePanes) == (8, 0, True)

@@ -59,6 +59,18 @@ class OpenpyxlWriter:
     def set_column_width(self, sheet: str, column: int, width: float) -> None:
         self.book[sheet].column_dimensions[column_letter(column)].width = width
 
+    def set_page(self, sheet: str, page: lay.PageSetup) -> None:
+        ws = self.book[sheet]
+        ws.page_setup.orientation = "landscape" if page.landscape else "portrait"
+        if page.fit_width:
+            ws.sheet_properties.pageSetUpPr.fitToPage = True
+            ws.page_setup.fitToWidth = 1
+            ws.page_setup.fitToHeight = 1 if page.fit_height else 0  # 0: as many pages tall as needed
+        if page.title_rows:
+            ws.print_title_rows = f"{page.title_rows[0]}:{page.title_rows[1]}"
+        if page.freeze:
+            ws.freeze_panes = f"{column_letter(page.freeze[1])}{page.freeze[0]}"
+
     def add_chart(self, sheet: str, chart: lay.Chart, x: SeriesRange, series) -> None:
         ws = self.book[sheet]
         plot = ScatterChart()

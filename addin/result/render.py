@@ -14,6 +14,7 @@ from types import SimpleNamespace
 from typing import Any, Protocol
 
 from . import layout as lay
+from . import printing
 
 __all__ = ["CellRecorder", "SeriesRange", "SheetWriter", "block_cells", "column_letter", "render"]
 
@@ -53,6 +54,9 @@ class SheetWriter(Protocol):
     def add_chart(self, sheet: str, chart: lay.Chart, x: SeriesRange, series: Sequence[tuple[str, SeriesRange]]) -> None:
         """A scatter chart (lines, no markers) of each (title, y range) against `x`."""
 
+    def set_page(self, sheet: str, page: lay.PageSetup) -> None:
+        """Print set-up: orientation, fit to width (and height), repeated title rows, frozen panes."""
+
 
 def column_letter(column: int) -> str:
     """1 -> A, 27 -> AA."""
@@ -79,6 +83,7 @@ def render(workbook: lay.WorkbookLayout, content: dict[str, dict[str, Any]], wri
             x = _column_range(sheet.name, table, chart.x, chart.skip_rows)
             series = [(title, _column_range(sheet.name, table, key, chart.skip_rows)) for key, title in chart.series]
             writer.add_chart(sheet.name, chart, x, series)
+        writer.set_page(sheet.name, printing.page_setup(sheet, summary=sheet is workbook.sheets[0]))
 
 
 def render_block(sheet: lay.Sheet, block, values: dict[str, Any], writer: SheetWriter, addresses: dict[str, Any]) -> None:
@@ -108,7 +113,7 @@ def render_block(sheet: lay.Sheet, block, values: dict[str, Any], writer: SheetW
         col = block.column + index
         header = f"{column.header} [{column.unit}]" if column.unit else column.header
         writer.write_cells(name, header_row, col, [[header]], None, True)
-        writer.set_column_width(name, col, column.width)
+        writer.set_column_width(name, col, printing.column_width(column))
         if block.rows == 0:
             continue
         if isinstance(block, lay.FormulaTable):
@@ -123,7 +128,8 @@ def render_block(sheet: lay.Sheet, block, values: dict[str, Any], writer: SheetW
             if len(data) != block.rows:
                 raise ValueError(f"block {block.key!r} column {column.key!r}: {len(data)} values for {block.rows} rows")
             cells = [[_safe(v)] for v in data]
-        writer.write_cells(name, first, col, cells, column.number_format, False)
+        writer.write_cells(name, first, col, cells, printing.number_format(column.number_format, data) if not
+                           isinstance(block, lay.FormulaTable) else column.number_format, False)  # fmt: skip
 
 
 def block_cells(sheet: lay.Sheet, block) -> list[tuple[int, int]]:
@@ -188,7 +194,8 @@ class CellRecorder:
 
     ``cells[(sheet, row, column)]`` is the value or formula text,
     ``formats[...]`` its number format, ``names[name]`` the ``sheet!reference``
-    and ``charts`` a list of (sheet, chart key, x address, [(title, y address)]).
+    ``charts`` a list of (sheet, chart key, x address, [(title, y address)])
+    and ``pages[sheet]`` its `layout.PageSetup`.
     """
 
     def __init__(self) -> None:
@@ -198,6 +205,7 @@ class CellRecorder:
         self.names: dict[str, str] = {}
         self.widths: dict[tuple[str, int], float] = {}
         self.charts: list[tuple[str, str, str, list[tuple[str, str]]]] = []
+        self.pages: dict[str, lay.PageSetup] = {}
 
     def add_sheet(self, name: str) -> None:
         self.sheets.append(name)
@@ -217,3 +225,6 @@ class CellRecorder:
 
     def add_chart(self, sheet, chart, x, series) -> None:
         self.charts.append((sheet, chart.key, x.address(), [(title, y.address()) for title, y in series]))
+
+    def set_page(self, sheet, page) -> None:
+        self.pages[sheet] = page
