@@ -113,6 +113,33 @@ class CalcWriter:
         if chart.log_x:
             document.getDiagram().getXAxis().Logarithmic = True
 
+    def set_page(self, sheet: str, page: lay.PageSetup) -> None:
+        """A page style of the sheet's own (Calc shares page styles between sheets), title rows, frozen panes."""
+        target = self._sheet(sheet)
+        styles = self.document.StyleFamilies.getByName("PageStyles")
+        name = f"groundstep {sheet}"
+        if not styles.hasByName(name):
+            styles.insertByName(name, self.document.createInstance("com.sun.star.style.PageStyle"))
+        style = styles.getByName(name)
+        if page.landscape and not style.IsLandscape:  # swap the paper's sides with the orientation
+            style.IsLandscape, style.Width, style.Height = True, style.Height, style.Width
+        if page.fit_width:
+            style.ScaleToPagesX, style.ScaleToPagesY = 1, 1 if page.fit_height else 0
+        target.PageStyle = name
+        if page.title_rows:
+            from .office import import_uno
+
+            rows = import_uno().createUnoStruct("com.sun.star.table.CellRangeAddress")
+            rows.Sheet = target.getCellByPosition(0, 0).getCellAddress().Sheet
+            rows.StartRow, rows.EndRow = page.title_rows[0] - 1, page.title_rows[1] - 1
+            target.setPrintTitleRows(True)
+            target.setTitleRows(rows)
+        if page.freeze:
+            controller = self.document.getCurrentController()
+            if controller is not None:  # a document loaded without a view has no panes to freeze
+                controller.setActiveSheet(target)
+                controller.freezeAtPosition(page.freeze[1] - 1, page.freeze[0] - 1)
+
     def _format_key(self, number_format: str) -> int:
         from .office import import_uno
 
