@@ -13,6 +13,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from . import _notices, _validate
+from . import budget as _budget
 from .units import ACCELERATION_UNITS, normalise_unit
 
 __all__ = ["ProcessingStep", "Record", "RecordTextWarning"]
@@ -107,8 +108,10 @@ class Record:
     def __post_init__(self) -> None:
         unit = normalise_unit(self.unit, ACCELERATION_UNITS)
         samples = _validate.as_vector(self.accel, "accel", min_size=2)
-        dt = _validate.positive(self.dt, "dt")
-        si = samples if self.accel_is_si else samples * ACCELERATION_UNITS[unit]
+        dt = _budget.check_dt(_validate.positive(self.dt, "dt"))
+        factor = 1.0 if self.accel_is_si else ACCELERATION_UNITS[unit]
+        _budget.check_samples(samples, factor)  # before converting: the product stays finite
+        si = samples if self.accel_is_si else samples * factor
         si.flags.writeable = False
         history = tuple(self.history)
         for index, step in enumerate(history):
