@@ -13,14 +13,36 @@ import threading
 from collections.abc import Callable
 from pathlib import Path
 
-__all__ = ["CAUTION", "ERROR_PREFIX", "write_atomically"]
+__all__ = ["CAUTION", "ERROR_PREFIX", "FORMULA_STARTS", "as_text", "write_atomically"]
 
 #: Shown on every result workbook, template, by STEP_ABOUT and by the command line.
 CAUTION = "Results support, not replace, engineering judgement; local codes and licensed practice govern."
 #: Every error message a worksheet function returns to a cell starts with this text.
 ERROR_PREFIX = "STEP error: "
 
+#: First characters that make a spreadsheet read typed text as a formula or a number
+#: (OWASP Foundation, "CSV Injection", owasp.org/www-community/attacks/CSV_Injection).
+FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
+
 _UMASK_LOCK = threading.Lock()
+
+
+def as_text(value: object) -> object:
+    """`value` unchanged unless it is text a spreadsheet would read as a formula: then quote-prefixed.
+
+    A leading apostrophe makes Excel and LibreOffice store what follows as
+    text (the apostrophe itself is not shown). Numbers, None and text with
+    any other first character pass unchanged. Callers that write formulas of
+    their own do not pass them through here.
+
+    Examples
+    --------
+    >>> as_text("=HYPERLINK(1)"), as_text("site A"), as_text(-1.5)
+    ("'=HYPERLINK(1)", 'site A', -1.5)
+    """
+    if isinstance(value, str) and value.startswith(FORMULA_STARTS):
+        return "'" + value
+    return value
 
 
 def write_atomically(

@@ -16,7 +16,7 @@ from collections.abc import Sequence
 from concurrent.futures import ProcessPoolExecutor, as_completed
 from pathlib import Path
 
-from groundstep.addin.common import CAUTION, write_atomically
+from groundstep.addin.common import CAUTION, as_text, write_atomically
 from groundstep.addin.result.content import ReportSettings
 
 __all__ = ["plan_outputs", "run_batch", "spectrum_job"]
@@ -91,7 +91,7 @@ def spectrum_job(
         header = ["period [s]"]
         for damping in table["dampings"]:
             header += [f"{q.upper()} zeta={damping:g} [{table['units'][q]}]" for q in ("sd", "psv", "psa", "sa")]
-        writer.writerow(header)
+        writer.writerow([as_text(cell) for cell in header])  # text cells can never start a formula
         for j, period in enumerate(table["periods"]):
             row = [repr(period)]
             for i in range(len(table["dampings"])):
