@@ -74,7 +74,7 @@ def check_package(path: str | os.PathLike[str], limits: PackageLimits = LIMITS) 
     try:
         archive = zipfile.ZipFile(file)
     except (zipfile.BadZipFile, OSError) as exc:
-        raise UnsafeWorkbook(f"{file.name!r} is not an .xlsx package (not a zip archive: {exc})") from None
+        raise UnsafeWorkbook(f"{file.name!r} cannot be opened as an .xlsx workbook (not a zip archive: {exc})") from None
     with archive:
         entries = archive.infolist()
         if len(entries) > limits.max_parts:
