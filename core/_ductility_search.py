@@ -10,7 +10,6 @@ lanes comes from one compiled kernel call per pass.
 from __future__ import annotations
 
 import math
-
 import time
 
 import numpy as np

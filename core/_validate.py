@@ -26,7 +26,7 @@ def as_float(value: object, argument: str) -> float:
     try:
         number = float(value)
     except OverflowError:  # an integer beyond float64's largest number (about 1.8e308)
-        raise ValueError(f"{named(argument)} must be finite, got an integer of {len(str(abs(int(value))))} digits") from None
+        raise ValueError(f"{named(argument)} must be finite, got an integer of {len(str(abs(value)))} digits") from None
     if not math.isfinite(number):
         raise ValueError(f"{named(argument)} must be finite, got {number!r}")
     return number

@@ -16,7 +16,6 @@ from __future__ import annotations
 
 import math
 import os
-import zipfile
 from dataclasses import dataclass
 from typing import Any
 

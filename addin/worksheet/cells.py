@@ -312,7 +312,7 @@ def _number(cell: Any) -> float:
         try:
             result = float(cell)
         except OverflowError:  # an integer beyond float64 (about 1.8e308)
-            raise _Reason(f"holds an integer of {len(str(abs(int(cell))))} digits, too large for a number") from None
+            raise _Reason(f"holds an integer of {len(str(abs(cell)))} digits, too large for a number") from None
     elif cell is None:
         raise _Reason("is blank")
     elif isinstance(cell, str):
