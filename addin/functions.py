@@ -2,7 +2,8 @@
 
 Users' workbooks name ``groundstep.addin.functions`` on their
 ``xlwings.conf`` sheet (``UDF Modules``), so this module keeps that name;
-the functions themselves are declared in ``groundstep.addin.worksheet``.
+the functions themselves are declared in ``groundstep.addin.worksheet`` (``functions.py``
+and ``records.py``).
 """
 
 from groundstep.addin.worksheet.functions import (
@@ -16,6 +17,7 @@ from groundstep.addin.worksheet.functions import (
     STEP_PEAK,
     STEP_SPECTRUM,
 )
+from groundstep.addin.worksheet.records import STEP_FOURIER, STEP_MEASURES, STEP_PROCESS
 
 __all__ = [
     "CATEGORY",
@@ -24,7 +26,10 @@ __all__ = [
     "STEP_ABOUT",
     "STEP_DUCTILITY",
     "STEP_DUCTILITY_SPECTRUM",
+    "STEP_FOURIER",
     "STEP_HISTORY",
+    "STEP_MEASURES",
     "STEP_PEAK",
+    "STEP_PROCESS",
     "STEP_SPECTRUM",
 ]

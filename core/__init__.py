@@ -9,6 +9,7 @@ from importlib.metadata import PackageNotFoundError, version
 
 from ._notices import collect_warnings
 from ._warm import warm_up
+from .design import DesignSpectrum, DesignSpectrumWarning, design_spectrum
 from .fourier import FourierAmplitude, fourier_amplitude
 from .inelastic import (
     ConvergenceError,
@@ -36,6 +37,8 @@ from .methods import METHODS, Method, resolve_method
 from .processing import ReplayWarning, bandpass, baseline_correct, replay_history
 from .record import ProcessingStep, Record, RecordTextWarning
 from .results import ElasticSpectrum, LinearResponse
+from .rotd import RotDSpectrum, rotd_spectrum
+from .scaling import SuitePreset, SuiteScaling, scale_suite, suite_preset
 from .synthetic import (
     filtered_noise,
     jennings_envelope,
@@ -60,6 +63,8 @@ __all__ = [
     "ConvergenceError",
     "ConvergenceWarning",
     "DEFAULT_STEP_RATIO",
+    "DesignSpectrum",
+    "DesignSpectrumWarning",
     "DuctilitySpectrum",
     "DuctilityTargetWarning",
     "ElasticSpectrum",
@@ -76,13 +81,17 @@ __all__ = [
     "Record",
     "RecordTextWarning",
     "ReplayWarning",
+    "RotDSpectrum",
     "STANDARD_GRAVITY",
     "SubstepWarning",
+    "SuitePreset",
+    "SuiteScaling",
     "__version__",
     "arias_intensity",
     "bandpass",
     "baseline_correct",
     "collect_warnings",
+    "design_spectrum",
     "ductility_spectrum",
     "elastic_spectrum",
     "filtered_noise",
@@ -97,7 +106,10 @@ __all__ = [
     "period_grid",
     "replay_history",
     "resolve_method",
+    "rotd_spectrum",
+    "scale_suite",
     "significant_duration",
+    "suite_preset",
     "synthetic_record",
     "warm_up",
 ]

@@ -47,6 +47,9 @@ def warm_up() -> dict[str, float]:
     if inelastic is not None:
         calls["inelastic_response"] = lambda: inelastic.inelastic_response(record, 0.5, reduction_factor=2.0)
         calls["ductility_spectrum"] = lambda: inelastic.ductility_spectrum(record, [0.3, 0.6], [1.0, 2.0])
+    from .rotd import rotd_spectrum
+
+    calls["rotd_spectrum"] = lambda: rotd_spectrum(record, record, [0.5])
     timings: dict[str, float] = {}
     with collect_warnings():  # sub-steps of the tiny record are expected; nothing process-wide changes
         start = time.perf_counter()

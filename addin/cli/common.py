@@ -43,6 +43,11 @@ def add_settings(p: argparse.ArgumentParser) -> None:
                    help="average (default), linear, exact, or BETA,GAMMA")  # fmt: skip
     g.add_argument("--max-step-ratio", type=float, default=None, metavar="RATIO",
                    help="largest h/T before a step is sub-divided (default 0.1)")  # fmt: skip
+    g.add_argument("--baseline", type=int, default=None, metavar="ORDER",
+                   help="remove the least-squares velocity trend of this degree first (1 to 10; 2 is usual)")  # fmt: skip
+    g.add_argument("--bandpass", default=None, metavar="LOW,HIGH",
+                   help="then a zero-phase Butterworth filter with corners LOW and HIGH [Hz]; leave one out "
+                        "for a high-pass (0.1,) or a low-pass (,25)")  # fmt: skip
     if p.prog.split()[-1] != "spectrum":  # the workbook commands add oscillators
         g.add_argument("--oscillator", action="append", default=None, metavar="LABEL:PERIOD[:DAMPING[:R]]",
                        help="an oscillator for the Peaks sheet (repeatable); with a strength reduction factor R "
@@ -87,9 +92,22 @@ def settings_from_options(args: argparse.Namespace, base: ReportSettings | None 
         changes["oscillators"] = tuple(oscillators)
     if getattr(args, "hardening", None) is not None:
         changes["hardening"] = check_hardening(args.hardening, "--hardening")
+    if getattr(args, "baseline", None) is not None:
+        changes["baseline_order"] = check_integer(args.baseline, "--baseline", minimum=1)
+    if getattr(args, "bandpass", None):
+        changes["low_hz"], changes["high_hz"] = _corners(args.bandpass)
     if getattr(args, "verification_period", None) is not None:
         changes["verification_period"] = args.verification_period
     return replace(base, **changes)
+
+
+def _corners(text: str) -> tuple[float | None, float | None]:
+    """``LOW,HIGH`` of --bandpass; an empty side is None (a high- or low-pass)."""
+    parts = text.split(",")
+    if len(parts) != 2 or not any(part.strip() for part in parts):
+        raise UsageError(f"--bandpass {text!r}: give LOW,HIGH in Hz, e.g. 0.1,25 (or 0.1, for a high-pass)")
+    low, high = (floats(part, "--bandpass")[0] if part.strip() else None for part in parts)
+    return low, high
 
 
 def floats(text: str, option: str) -> list[float]:
@@ -112,7 +130,12 @@ def print_headline(out: Path, report: Any, seconds: float) -> None:
     h = report.headline
     s = report.content["record_summary"]
     print(f"wrote {out} in {seconds:.1f} s")
-    print(f"  record: {s['record_name']}, {s['samples']} samples, {s['duration']:.2f} s, PGA {h['pga']:.4g} {h['unit']}")
+    analysed = len(report.content["record_table"]["time"])
+    padded = f" ({analysed} after processing, zero pads included)" if analysed != s["samples"] else ""
+    print(f"  record: {s['record_name']}, {s['samples']} samples{padded}, {s['duration']:.2f} s, "
+          f"PGA {h['pga']:.4g} {h['unit']}")  # fmt: skip
+    for step in report.content.get("processing_table", {}).get("step", []):
+        print(f"  processed: {step}")
     print(f"  significant duration (5-95 % Arias): {h['significant_duration']:.2f} s")
     print(
         f"  largest PSA: {h['peak_psa']:.4g} {h['unit']} at T = {h['peak_psa_period']:.3g} s "

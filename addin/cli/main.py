@@ -1,7 +1,7 @@
 """The ``groundstep`` command line: the parser and the dispatch to one module per command.
 
 Commands: ``demo``, ``fill``, ``spectrum``, ``verify``, ``templates``,
-``warm``. Exit codes (also in ``groundstep --help``):
+``calc-extension``, ``warm``. Exit codes (also in ``groundstep --help``):
 
 0  success (``verify``: every block matches)
 1  ``verify``: at least one block does not match
@@ -22,7 +22,7 @@ from types import ModuleType
 
 from groundstep.addin.common import CAUTION
 
-from . import demo, fill, spectrum, templates, verify, warm
+from . import calc_extension, demo, fill, spectrum, templates, verify, warm
 from .common import EXIT_INPUT, EXIT_INTERNAL
 
 __all__ = ["main"]
@@ -59,6 +59,11 @@ _COMMANDS: dict[str, tuple[ModuleType, str, str]] = {
     "templates": (
         templates, "write the calculation-package workbook templates",
         "Write the workbook templates (worksheet functions, input cells) into DIR.",
+    ),
+    "calc-extension": (
+        calc_extension, "build, install or remove the LibreOffice Calc extension (STEP_ functions in Calc)",
+        "build OUT.oxt writes the extension; install [--profile DIR] checks that LibreOffice's Python can import "
+        "groundstep and installs it for the current user or into a profile folder; remove [--profile DIR].",
     ),
     "warm": (
         warm, "compile the numerical kernels once (fills numba's on-disk cache)",

@@ -48,7 +48,7 @@ def spectrum_job(
     source: Path, target: Path, settings: ReportSettings, dt: float | None, unit: str, time_column: bool | None, command: str
 ) -> str:
     """Read one record, compute, write `target`; return a one-line summary."""
-    from groundstep.addin.result.content import build_report, spectrum_table
+    from groundstep.addin.result.content import build_report, processed_record, spectrum_table
     from groundstep.addin.result.offline import write_report
     from groundstep.core import Record, collect_warnings, elastic_spectrum
     from groundstep.core.units import output_units
@@ -60,6 +60,8 @@ def spectrum_job(
             write_report(report, target, force=True)
             h = report.headline
             return f"PGA {h['pga']:.4g} {h['unit']}, largest PSA {h['peak_psa']:.4g} {h['unit']} at {h['peak_psa_period']:.3g} s"
+        raw_steps = len(record.history)
+        record = processed_record(record, settings)  # as the workbook does: baseline, then band-pass
         spectrum = elastic_spectrum(
             record, settings.periods, settings.dampings, settings.method, max_step_ratio=settings.max_step_ratio
         )
@@ -77,6 +79,7 @@ def spectrum_job(
                 "beta": spectrum.method.beta if spectrum.method.is_newmark else None,
                 "gamma": spectrum.method.gamma if spectrum.method.is_newmark else None,
                 "max_step_ratio": settings.max_step_ratio,
+                "processing": [step.describe() for step in record.history[raw_steps:]],
                 "units": table["units"],
                 "periods": table["periods"],
                 "dampings": table["dampings"],
@@ -88,6 +91,8 @@ def spectrum_job(
     else:
         buffer = io.StringIO()
         writer = csv.writer(buffer, lineterminator="\n")
+        for step in record.history[raw_steps:]:  # the processing, one comment line per step, above the table
+            buffer.write(f"# processing: {step.describe()}\n")
         header = ["period [s]"]
         for damping in table["dampings"]:
             header += [f"{q.upper()} zeta={damping:g} [{table['units'][q]}]" for q in ("sd", "psv", "psa", "sa")]

@@ -6,7 +6,9 @@ names (the calculation-package template, ``names.INPUTS``) or through an
 explicit ``SHEET!RANGE`` for the record. Oscillators may carry a strength
 reduction factor R (``input_peak_reduction_factors`` or
 ``gs_in_oscillator_reduction_factors``, cell for cell beside the periods; a
-blank cell keeps that oscillator elastic only). Every cell is checked by the
+blank cell keeps that oscillator elastic only). Processing (baseline order,
+band-pass corners) comes from ``input_baseline_order``, ``input_low_hz`` and
+``input_high_hz``; blank cells ask for none. Every cell is checked by the
 worksheet-function entrance (``worksheet.cells``), so messages are the same as in the
 worksheet functions and name the range and row.
 """
@@ -24,7 +26,7 @@ from groundstep.addin.result.content import PROJECT_KEYS, Oscillator, ReportSett
 from groundstep.addin.result.guard import UnsafeWorkbook, check_package
 from groundstep.addin.worksheet import cells as _cells
 from groundstep.core import Record
-from groundstep.core.checks import check_hardening
+from groundstep.core.checks import check_hardening, check_integer
 from groundstep.core.defaults import DEFAULT_DAMPING
 from groundstep.core.units import ACCELERATION_UNITS
 
@@ -131,6 +133,14 @@ def settings_from_cells(
     hardening_cell = get("hardening")
     if hardening_cell is not None:
         hardening = check_hardening(_cells.number(hardening_cell, "the hardening cell", 0.0), "the hardening cell")
+    processing: dict[str, Any] = {}
+    for key, what in (("baseline_order", "the baseline-order cell"), ("low_hz", "the low-corner cell"),
+                      ("high_hz", "the high-corner cell")):  # fmt: skip
+        cell = get(key)
+        value = _cells.number(cell, what, None) if cell is not None else None
+        processing[key] = getattr(base, key) if value is None else value
+    if processing["baseline_order"] is not None:
+        processing["baseline_order"] = check_integer(processing["baseline_order"], "the baseline-order cell", 1)
     project = []
     for key in PROJECT_KEYS:
         cell = get(key)
@@ -151,6 +161,7 @@ def settings_from_cells(
         verification_damping=base.verification_damping,
         project=tuple(project) or base.project,
         hardening=hardening,
+        **processing,
     )
     return record, settings
 

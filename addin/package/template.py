@@ -67,6 +67,11 @@ _SETTING_ROWS = (
     ("input_method", "Method", "average (default), linear or exact", "average"),
     ("input_accel_unit_out", "Output acceleration unit", "Blank: the record unit", None),
     ("input_length_unit_out", "Output length unit", "Blank: m, cm, mm, in or ft matching the record unit", None),
+    # processing: read by `groundstep fill` for the result workbook; the STEP_ cells here use the record as pasted
+    ("input_baseline_order", "Baseline order (fill)", "Result workbook: velocity trend removed, 1-10 (2 is usual); "
+     "blank: none. STEP_ cells here use the record as pasted (STEP_PROCESS gives a processed column)", None),
+    ("input_low_hz", "Band-pass low corner [Hz] (fill)", "Result workbook: Butterworth high-pass corner; blank: none", None),
+    ("input_high_hz", "Band-pass high corner [Hz] (fill)", "Result workbook: Butterworth low-pass corner; blank: none", None),
 )
 _ABOUT_TOP = (5, 4)  # STEP_ABOUT block at Input!D5, two columns
 _ABOUT_ROWS = 13

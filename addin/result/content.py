@@ -20,12 +20,17 @@ import numpy as np
 from groundstep.addin.common import CAUTION
 from groundstep.core import (
     ElasticSpectrum,
+    GroundMotionMeasures,
     InelasticResponse,
     LinearResponse,
     Record,
     __version__,
+    bandpass,
+    baseline_correct,
     collect_warnings,
     elastic_spectrum,
+    fourier_amplitude,
+    ground_motion_measures,
     inelastic_response,
     linear_response,
 )
@@ -37,7 +42,6 @@ from groundstep.core.defaults import (
     DEFAULT_TOLERANCE,
     default_periods,
 )
-from groundstep.core.measures import arias_intensity, normalised_arias, significant_duration
 from groundstep.core.methods import Method, resolve_method
 from groundstep.core.units import ACCELERATION_UNITS, OutputUnits, output_units
 
@@ -50,6 +54,7 @@ __all__ = [
     "Report",
     "ReportSettings",
     "build_report",
+    "processed_record",
     "spectrum_table",
     "stored_record",
     "yielding_method",
@@ -106,6 +111,14 @@ class ReportSettings:
     hardening : float
         Post-yield stiffness ratio α of the yielding oscillators, in [0, 1);
         0 (the default) is elastoplastic.
+    baseline_order : int or None
+        Degree of the velocity trend removed first
+        (``groundstep.core.baseline_correct``); None: no baseline correction.
+    low_hz, high_hz : float or None
+        Corners [Hz] of the Butterworth band-pass applied next
+        (``groundstep.core.bandpass``, its defaults otherwise: order 4,
+        5 % taper, pads kept); both None: no filter, one None: a high- or
+        low-pass.
     """
 
     periods: tuple[float, ...] = field(default_factory=_default_periods)
@@ -117,6 +130,9 @@ class ReportSettings:
     verification_damping: float = DEFAULT_DAMPING
     project: tuple[tuple[str, str], ...] = ()
     hardening: float = 0.0
+    baseline_order: int | None = None
+    low_hz: float | None = None
+    high_hz: float | None = None
 
 
 @dataclass(frozen=True, slots=True)
@@ -165,7 +181,9 @@ def build_report(
         ``inelastic_response``; the message names the time).
     """
     method = resolve_method(settings.method)
-    record = stored_record(record)
+    raw = stored_record(record)
+    record = processed_record(raw, settings)
+    steps = record.history[len(raw.history) :]
     out = output_units(record.unit)
     project = _project(settings)
     # sub-steps are shown per oscillator on the Peaks sheet; a yielding result is always converged
@@ -177,30 +195,40 @@ def build_report(
             for o in settings.oscillators
         ]
         yielding_oscillators, yielding = _yielding_responses(record, settings, method)
+        # measures warn of an all-zero record or a cut mean-period band; the values say so (NaN, 0)
+        measures = ground_motion_measures(record)
+        raw_measures = ground_motion_measures(raw) if steps else None
+    shift = _time_shift(raw, record)
+    fourier = _fourier_blocks(record, out)
     verification = _verification_oscillator(record, settings, method)
     layout = sheets.result_layout(
         record.n, spectrum.periods.size, tuple(float(d) for d in spectrum.dampings), len(peaks),
-        out.acceleration, out.length, len(yielding),
+        out.acceleration, out.length, len(yielding), n_raw=raw.n if steps else 0,
+        n_frequencies=len(fourier["fourier_table"]["frequency"]),
+        n_chart_frequencies=len(fourier["fourier_chart_table"]["frequency"]), n_steps=len(steps),
     )  # fmt: skip
     table = spectrum_table(spectrum, out)
     content: dict[str, dict[str, Any]] = {
         "project": {key: project.get(key, "") for key in PROJECT_KEYS},
-        "record_summary": _record_summary(record, out),
+        "record_summary": _record_summary(raw, measures, out),
         "key_results": _key_results(spectrum, table),
         "check": {},
         "record": {"record_unit": record.unit, "dt": record.dt, "unit_factor": ACCELERATION_UNITS[record.unit]},
-        "record_table": {
-            "time": record.time.tolist(),
-            "accel": record.accel_in(record.unit).tolist(),
-            "arias": normalised_arias(record).tolist(),
-        },
+        "record_table": _record_columns(record, out, shift),
+        "measures": _measures_block(measures, "measure_", out, shift),
+        "arias_table": _arias_columns(measures, shift),
+        **fourier,
+        "processing_table": {"step": [step.describe() for step in steps]},
         "spectra_table": _spectra_columns(table),
         "peaks_table": _peaks_table(settings.oscillators, peaks, out),
         "yielding_table": _yielding_table(yielding_oscillators, yielding, out, settings.hardening, method),
         **_verification_blocks(record, *verification),
-        "audit": _audit(record, command, source, created),
+        "audit": _audit(raw, command, source, created),
         "settings": _settings_block(settings, spectrum, method),
     }
+    if raw_measures is not None:
+        content["raw_table"] = _record_columns(raw, out, 0.0)
+        content["raw_measures"] = _measures_block(raw_measures, "raw_measure_", out, 0.0)
     if yielding:
         content["yielding_summary"] = _yielding_summary(yielding_oscillators, yielding, out)
     return Report(layout, content, _headline(record, spectrum, out, content, verification))
@@ -214,16 +242,86 @@ def _project(settings: ReportSettings) -> dict[str, str]:
     return project
 
 
-def _record_summary(record: Record, out: OutputUnits) -> dict[str, Any]:
+def processed_record(record: Record, settings: ReportSettings) -> Record:
+    """`record` after the processing `settings` ask for: `baseline_correct`, then `bandpass`.
+
+    Returns `record` itself when no processing is asked for. The core
+    functions record each step in the new record's ``history``; ``verify``
+    replays those steps from the record as read.
+    """
+    if settings.baseline_order is not None:
+        record = baseline_correct(record, settings.baseline_order)
+    if settings.low_hz is not None or settings.high_hz is not None:
+        record = bandpass(record, settings.low_hz, settings.high_hz)
+    return record
+
+
+def _time_shift(raw: Record, record: Record) -> float:
+    """Time [s] of the processed record's first sample on the raw record's time axis (0 or negative).
+
+    `bandpass` keeps its zero pads, n_pad samples at each end, so the first
+    sample as read is sample n_pad of the result (its documented layout);
+    the sheets count time from that sample.
+    """
+    return -((record.n - raw.n) // 2) * record.dt
+
+
+def _record_summary(raw: Record, measures: GroundMotionMeasures, out: OutputUnits) -> dict[str, Any]:
+    """Name, samples and duration of the record as read; the peaks and Arias values of the one analysed."""
     return {
-        "record_name": record.name or "(unnamed)",
-        "samples": record.n,
-        "duration": record.duration,
-        "pga": out.acceleration_from_si(record.pga),
-        "pgv": out.velocity_from_si(float(np.max(np.abs(record.ground_velocity())))),
-        "pgd": out.length_from_si(float(np.max(np.abs(record.ground_displacement())))),
-        "arias": float(arias_intensity(record)[-1]),
-        "significant_duration": significant_duration(record),
+        "record_name": raw.name or "(unnamed)",
+        "samples": raw.n,
+        "duration": raw.duration,
+        "pga": out.acceleration_from_si(measures.pga),
+        "pgv": out.velocity_from_si(measures.pgv),
+        "pgd": out.length_from_si(measures.pgd),
+        "arias": measures.arias_intensity,
+        "significant_duration": measures.d5_95,
+    }
+
+
+def _record_columns(record: Record, out: OutputUnits, shift: float) -> dict[str, list[float]]:
+    return {
+        "time": (record.time + shift).tolist(),
+        "accel": record.accel_in(record.unit).tolist(),
+        "velocity": np.asarray(out.velocity_from_si(record.ground_velocity())).tolist(),
+        "displacement": np.asarray(out.length_from_si(record.ground_displacement())).tolist(),
+    }
+
+
+def _measures_block(measures: GroundMotionMeasures, prefix: str, out: OutputUnits, shift: float) -> dict[str, Any]:
+    """The Measures sheet's fields in the report units, times of occurrence moved by `shift` [s]
+    (NaN, e.g. the times of an all-zero record, left blank)."""
+    convert = {"acceleration": out.acceleration_from_si, "velocity": out.velocity_from_si, "length": out.length_from_si,
+               "instant": lambda t: t + shift}  # fmt: skip
+    values: dict[str, Any] = {}
+    for key, _, kind, _, _ in sheets.MEASURE_FIELDS:
+        value = float(convert[kind](measures[key]) if kind in convert else measures[key])
+        values[prefix + key] = None if math.isnan(value) else value
+    return values
+
+
+def _arias_columns(measures: GroundMotionMeasures, shift: float) -> dict[str, list[Any]]:
+    build_up = measures.arias_build_up
+    time = np.arange(build_up.size) * measures.dt  # the core's own times, from the first sample analysed
+    inside = (time >= measures.d5_95_start) & (time <= measures.d5_95_end)  # all False when the times are NaN
+    return {
+        "time": (time + shift).tolist(),
+        "build_up": build_up.tolist(),
+        "within_d5_95": [value if flag else None for value, flag in zip(build_up.tolist(), inside.tolist())],
+    }
+
+
+def _fourier_blocks(record: Record, out: OutputUnits) -> dict[str, dict[str, list[float]]]:
+    """The raw Fourier amplitude at every non-zero FFT frequency, and at most CHART_POINTS of them for the chart."""
+    spectrum = fourier_amplitude(record)
+    frequencies, amplitudes = spectrum.frequencies[1:], np.asarray(out.velocity_from_si(spectrum.amplitudes[1:]))
+    picks = np.arange(frequencies.size)
+    if frequencies.size > sheets.CHART_POINTS:  # log-spaced picks: a log axis needs the low end, not every bin
+        picks = np.unique(np.rint(np.geomspace(1, frequencies.size, sheets.CHART_POINTS)).astype(int) - 1)
+    return {
+        "fourier_table": {"frequency": frequencies.tolist(), "amplitude": amplitudes.tolist()},
+        "fourier_chart_table": {"frequency": frequencies[picks].tolist(), "amplitude": amplitudes[picks].tolist()},
     }
 
 

@@ -57,12 +57,17 @@ INTEGER = "0"
 
 @dataclass(frozen=True, slots=True)
 class Field:
-    """One labelled value: label in the block's first column, value beside it, unit after."""
+    """One labelled value: label in the block's first column, value beside it, unit after, then `source`.
+
+    `source` (optional) names the definition or paper the value follows; it
+    is written as text after the unit.
+    """
 
     key: str
     label: str
     unit: str = ""
     number_format: str = GENERAL
+    source: str = ""
 
 
 @dataclass(frozen=True, slots=True)
@@ -142,7 +147,8 @@ class Chart:
     """A native scatter chart (straight lines, no markers) of table columns.
 
     Each entry of `series` is (y column key, series title); all share the
-    `x` column of `table`.
+    `x` column of `table`. `log_x` and `log_y` put that axis on a base-10
+    logarithmic scale (its values must then be > 0).
     """
 
     key: str
@@ -155,6 +161,7 @@ class Chart:
     row: int
     column: int
     log_x: bool = False
+    log_y: bool = False
     width_cm: float = 16.0
     height_cm: float = 8.5
 

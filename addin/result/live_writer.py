@@ -25,6 +25,7 @@ __all__ = ["XlwingsWriter"]
 _SCATTER = "xy_scatter_lines_no_markers"
 _LOG_SCALE = -4133  # Excel XlScaleType.xlScaleLogarithmic
 _CATEGORY_AXIS = 1  # Excel XlAxisType.xlCategory (the x axis of a scatter chart)
+_VALUE_AXIS = 2  # Excel XlAxisType.xlValue (the y axis)
 _POINTS_PER_CM = 28.3465
 
 
@@ -102,5 +103,7 @@ class XlwingsWriter:
             native.ChartTitle.Text = chart.title
             if chart.log_x:
                 native.Axes(_CATEGORY_AXIS).ScaleType = _LOG_SCALE
+            if chart.log_y:
+                native.Axes(_VALUE_AXIS).ScaleType = _LOG_SCALE
         except (AttributeError, TypeError, IndexError):
             pass  # elsewhere the chart keeps the first series on a linear axis

@@ -74,6 +74,8 @@ class OpenpyxlWriter:
         plot.y_axis.delete = False
         if chart.log_x:
             plot.x_axis.scaling.logBase = 10
+        if chart.log_y:
+            plot.y_axis.scaling.logBase = 10
         # plain axis labels, not the scientific format of the table cells
         plot.x_axis.number_format = "General"
         plot.y_axis.number_format = "General"

@@ -111,6 +111,8 @@ def render_block(sheet: lay.Sheet, block, values: dict[str, Any], writer: SheetW
             writer.write_cells(name, row, block.column + 1, [[value]], item.number_format, False)
             if item.unit:
                 writer.write_cells(name, row, block.column + 2, [[item.unit]], None, False)
+            if item.source:
+                writer.write_cells(name, row, block.column + 3, [[item.source]], None, False)
         return
     header_row = block.row + 1
     first = header_row + 1

@@ -29,6 +29,9 @@ from .layout import (
 
 __all__ = [
     "AUDIT",
+    "CHART_POINTS",
+    "MEASURES",
+    "MEASURE_FIELDS",
     "PEAKS",
     "RECORD",
     "RECORD_FIRST_ROW",
@@ -43,6 +46,47 @@ __all__ = [
 
 
 SUMMARY, RECORD, SPECTRA, PEAKS, VERIFICATION, AUDIT = "Summary", "Record", "Spectra", "Peaks", "Verification", "Audit"
+MEASURES = "Measures"
+#: Most points a Fourier amplitude chart series holds: a longer spectrum is charted at
+#: log-spaced picks of its table (the table keeps every frequency). A choice of ours: enough to
+#: draw the curve on a log axis, few enough for spreadsheets to redraw quickly.
+CHART_POINTS = 2000
+#: The ground-motion measures of the Measures sheet, in order: (key of
+#: ``groundstep.core.GroundMotionMeasures``, label, kind of unit, number format, definition and source).
+#: Kind "instant" is a time of occurrence [s] (shifted with the time axis), "time" a duration or period [s].
+MEASURE_FIELDS: tuple[tuple[str, str, str, str, str], ...] = (
+    ("pga", "Peak ground acceleration PGA", "acceleration", SCIENTIFIC, "largest |a| at the samples"),
+    ("pga_time", "  at time", "instant", FIXED3, "first sample where it occurs"),
+    ("pgv", "Peak ground velocity PGV", "velocity", SCIENTIFIC,
+     "velocity by the trapezoidal rule, exact for a(t) linear between samples, from rest"),
+    ("pgv_time", "  at time", "instant", FIXED3, "first sample where it occurs"),
+    ("pgd", "Peak ground displacement PGD", "length", SCIENTIFIC,
+     "exact displacement of a(t) linear between samples, from rest"),
+    ("pgd_time", "  at time", "instant", FIXED3, "first sample where it occurs"),
+    ("arias_intensity", "Arias intensity I_A", "arias", SCIENTIFIC,
+     "Arias (1970), in Seismic Design for Nuclear Power Plants, MIT Press: I_A = π/(2g)·∫a² dt"),
+    ("d5_75", "Significant duration D5-75", "time", FIXED3,
+     "Trifunac & Brady (1975), BSSA 65(3):581-626: 5 % to 75 % of I_A"),
+    ("d5_75_start", "  from", "instant", FIXED3, "time of 5 % of I_A"),
+    ("d5_75_end", "  to", "instant", FIXED3, "time of 75 % of I_A"),
+    ("d5_95", "Significant duration D5-95", "time", FIXED3,
+     "Trifunac & Brady (1975), BSSA 65(3):581-626: 5 % to 95 % of I_A"),
+    ("d5_95_start", "  from", "instant", FIXED3, "time of 5 % of I_A"),
+    ("d5_95_end", "  to", "instant", FIXED3, "time of 95 % of I_A"),
+    ("cav", "Cumulative absolute velocity CAV", "velocity", SCIENTIFIC,
+     "EPRI (1988) NP-5930: ∫|a| dt over the whole record (no threshold, no windows)"),
+    ("bracketed_duration", "Bracketed duration", "time", FIXED3,
+     "Bolt (1973), 5th World Conf. Earthquake Eng.: first to last |a| above the threshold"),
+    ("bracketed_start", "  from", "instant", FIXED3, "first crossing of the threshold"),
+    ("bracketed_end", "  to", "instant", FIXED3, "last crossing of the threshold"),
+    ("bracket_threshold", "  threshold", "acceleration", SCIENTIFIC, "0.05 g, common practice"),
+    ("mean_period", "Mean period Tm", "time", FIXED4,
+     "Rathje, Abrahamson & Bray (1998), J. Geotech. Geoenviron. Eng. 124(2): FFT amplitudes, 0.25-20 Hz"),
+    ("spectrum_intensity", "Spectrum intensity SI", "length", SCIENTIFIC,
+     "Housner (1952), EERI symposium: ∫PSV dT from 0.1 s to 2.5 s at 5 % damping"),
+    ("predominant_period", "Predominant period Tp", "time", FIXED4,
+     "period of the largest 5 %-damped PSA among 160 periods, 0.02-5 s"),
+)  # fmt: skip
 #: First data row of the Record table; the Verification steps start on the same row.
 RECORD_FIRST_ROW = 9
 #: Title of the Peaks sheet's table of yielding oscillators.
@@ -65,6 +109,11 @@ def result_layout(
     unit: str,
     length_unit: str,
     n_yielding: int = 0,
+    *,
+    n_raw: int = 0,
+    n_frequencies: int = 0,
+    n_chart_frequencies: int = 0,
+    n_steps: int = 0,
 ) -> WorkbookLayout:
     """The result workbook's layout for the given sizes and units.
 
@@ -81,16 +130,26 @@ def result_layout(
         Oscillators that carry a strength reduction factor R: rows of the
         yielding table on the Peaks sheet (title and header only when 0;
         the Summary's yielding block appears only when > 0).
+    n_raw : int, default 0
+        Samples of the record as read when it was processed (its own table,
+        charts and measures appear beside the processed ones); 0 without
+        processing.
+    n_frequencies, n_chart_frequencies : int, default 0
+        Rows of the Measures sheet's Fourier table (non-zero FFT
+        frequencies) and of its chart table (at most `CHART_POINTS`).
+    n_steps : int, default 0
+        Processing steps listed on the Audit sheet.
     """
     velocity_unit = f"{length_unit}/s"
     return WorkbookLayout(
         (
             _summary(dampings, unit, length_unit, velocity_unit, n_yielding),
-            _record(n_samples, unit),
+            _record(n_samples, unit, length_unit, velocity_unit, n_raw),
             _spectra(n_periods, dampings, unit, length_unit, velocity_unit),
             _peaks(n_oscillators, unit, length_unit, velocity_unit, n_yielding),
+            _measures(n_samples, unit, length_unit, velocity_unit, n_raw > 0, n_frequencies, n_chart_frequencies),
             _verification(n_samples),
-            _audit(),
+            _audit(n_steps),
         )
     )
 
@@ -154,7 +213,7 @@ def _summary(dampings, unit, length_unit, velocity_unit, n_yielding) -> Sheet:
     return Sheet(SUMMARY, "groundstep result workbook", blocks, note=CAUTION)
 
 
-def _record(n_samples, unit) -> Sheet:
+def _record(n_samples, unit, length_unit, velocity_unit, n_raw) -> Sheet:
     fields = Fields(
         "record", "Ground acceleration record", 3, 1,
         (
@@ -163,21 +222,107 @@ def _record(n_samples, unit) -> Sheet:
             Field("unit_factor", "Unit to m/s² factor", "m/s² per unit", GENERAL),
         ),
     )  # fmt: skip
-    table = Table(
-        "record_table", "Samples", RECORD_FIRST_ROW - 2, 1,
-        (
+
+    def columns(accel_format: str) -> tuple[Column, ...]:
+        return (
             Column("time", "Time", "s", FIXED3, 10.0),
-            Column("accel", "Acceleration", unit, GENERAL, 16.0),
-            Column("arias", "Normalised Arias intensity (Arias 1970)", "-", FIXED4, 18.0),
+            Column("accel", "Acceleration", unit, accel_format, 16.0),
+            Column("velocity", "Velocity", velocity_unit, SCIENTIFIC, 14.0),
+            Column("displacement", "Displacement", length_unit, SCIENTIFIC, 14.0),
+        )
+
+    processed = n_raw > 0
+    title = "Processed samples (every result is computed from these)" if processed else "Samples"
+    table = Table("record_table", title, RECORD_FIRST_ROW - 2, 1, columns(GENERAL), n_samples, checked=True)
+    blocks: tuple[Fields | Table | FormulaTable, ...] = (fields, table)
+    charts = _record_charts("record_table", "Processed ground" if processed else "Ground", 12 if processed else 6,
+                            unit, length_unit, velocity_unit)  # fmt: skip
+    note = ""
+    if processed:
+        raw = Table("raw_table", "Record as read (before processing; verify replays the processing from it)",
+                    RECORD_FIRST_ROW - 2, 7, columns(GENERAL), n_raw)  # fmt: skip
+        blocks += (raw,)
+        charts += _record_charts("raw_table", "As read: ground", 22, unit, length_unit, velocity_unit)
+        note = ("Processed as listed on the Audit sheet. A band-pass record keeps its zero pads (Boore 2005): "
+                "times count from the first sample as read, so the front pad has negative times.")  # fmt: skip
+    return Sheet(RECORD, "Ground acceleration record", blocks, charts, note=note)
+
+
+def _record_charts(table: str, prefix: str, column: int, unit, length_unit, velocity_unit) -> tuple[Chart, ...]:
+    """Acceleration, velocity and displacement against time, stacked in `column`."""
+    quantities = (("accel", "acceleration", unit), ("velocity", "velocity", velocity_unit),
+                  ("displacement", "displacement", length_unit))  # fmt: skip
+    return tuple(
+        Chart(
+            f"{table}_{key}_chart", f"{prefix} {name}", table, "time", ((key, name),),
+            "Time [s]", f"{name.capitalize()} [{axis}]", 3 + 19 * index, column,
+        )
+        for index, (key, name, axis) in enumerate(quantities)
+    )  # fmt: skip
+
+
+def _measures(n_samples, unit, length_unit, velocity_unit, processed, n_frequencies, n_chart_frequencies) -> Sheet:
+    units = {"acceleration": unit, "velocity": velocity_unit, "length": length_unit, "time": "s", "instant": "s",
+             "arias": "m/s"}  # fmt: skip
+
+    def fields(prefix: str, with_source: bool) -> tuple[Field, ...]:
+        return tuple(
+            Field(f"{prefix}{key}", label, units[kind], number_format, source if with_source else "")
+            for key, label, kind, number_format, source in MEASURE_FIELDS
+        )
+
+    title = "Ground-motion measures" + (" of the processed record" if processed else "")
+    measures: tuple[Fields | Table | FormulaTable, ...] = (
+        Fields("measures", title, 3, 1, fields("measure_", True), checked=True),
+    )
+    if processed:
+        measures += (Fields("raw_measures", "Of the record as read (before processing)", 3, 6,
+                            fields("raw_measure_", False), checked=True),)  # fmt: skip
+    top = 5 + len(MEASURE_FIELDS) + 2
+    tables: tuple[Fields | Table | FormulaTable, ...] = (
+        Table(
+            "arias_table", "Arias intensity build-up (Arias 1970)", top, 1,
+            (
+                Column("time", "Time", "s", FIXED3, 10.0),
+                Column("build_up", "I_A(t) / I_A", "-", FIXED4, 14.0),
+                Column("within_d5_95", "Within D5-95 (blank outside)", "-", FIXED4, 14.0),
+            ),
+            n_samples, checked=True,
         ),
-        n_samples,
-        checked=True,
+        Table(
+            "fourier_table", "Fourier amplitude |A(f)| = |FFT|·dt (no smoothing; f = 0 left out)", top, 5,
+            (Column("frequency", "Frequency", "Hz", SCIENTIFIC, 14.0),
+             Column("amplitude", "Fourier amplitude", velocity_unit, SCIENTIFIC, 16.0)),
+            n_frequencies, checked=True,
+        ),
+        Table(
+            "fourier_chart_table",
+            f"Chart points: every frequency up to {CHART_POINTS}, else log-spaced picks of the table at left",
+            top, 8,
+            (Column("frequency", "Frequency", "Hz", SCIENTIFIC, 14.0),
+             Column("amplitude", "Fourier amplitude", velocity_unit, SCIENTIFIC, 16.0)),
+            n_chart_frequencies, checked=True,
+        ),
     )  # fmt: skip
-    chart = Chart(
-        "record_chart", "Ground acceleration", "record_table", "time", (("accel", "acceleration"),),
-        "Time [s]", f"Acceleration [{unit}]", 3, 5,
+    blocks = tables + measures  # the fields come last so that their label column keeps its width
+    right = 11
+    charts = (
+        Chart(
+            "arias_chart", "Arias intensity build-up, D5-95 marked", "arias_table", "time",
+            (("build_up", "I_A(t) / I_A"), ("within_d5_95", "D5-95 interval")),
+            "Time [s]", "I_A(t) / I_A [-]", 3, right,
+        ),
+        Chart(
+            "fourier_chart", "Fourier amplitude", "fourier_chart_table", "frequency",
+            (("amplitude", "|A(f)|"),),
+            "Frequency [Hz] (logarithmic)", f"Fourier amplitude [{velocity_unit}] (logarithmic)", 22, right,
+            log_x=True, log_y=True,
+        ),
     )  # fmt: skip
-    return Sheet(RECORD, "Ground acceleration record", (fields, table), (chart,))
+    note = ("Times count from the first sample as read (the front pad of a filtered record has negative times). "
+            f"Velocities and lengths in {velocity_unit} and {length_unit}, matching the record's unit; "
+            "Arias intensity in m/s.")  # fmt: skip
+    return Sheet(MEASURES, "Ground-motion measures", blocks, charts, note=note)
 
 
 def _spectra(n_periods, dampings, unit, length_unit, velocity_unit) -> Sheet:
@@ -332,7 +477,7 @@ def _verification(n_samples) -> Sheet:
     return Sheet(VERIFICATION, "Verification: one oscillator replayed by formulas", (inputs, constants, check, steps))
 
 
-def _audit() -> Sheet:
+def _audit(n_steps: int) -> Sheet:
     fields = Fields(
         "audit", "Provenance", 3, 1,
         (
@@ -343,7 +488,7 @@ def _audit() -> Sheet:
             Field("python_version", "Python", "", TEXT),
             Field("library_versions", "numpy / scipy / numba / openpyxl", "", TEXT),
             Field("platform", "Platform", "", TEXT),
-            Field("record_sha256", "Record SHA-256 (samples as on the Record sheet, unit, dt)", "", TEXT),
+            Field("record_sha256", "Record SHA-256 (samples as read, on the Record sheet; unit; dt)", "", TEXT),
             Field("record_source", "Record source", "", TEXT),
             Field("caution", "Caution", "", TEXT),
         ),
@@ -362,4 +507,9 @@ def _audit() -> Sheet:
             Field("yielding_method", "Yielding oscillators: hysteresis and method", "", TEXT),
         ),
     )  # fmt: skip
-    return Sheet(AUDIT, "Audit trail", (fields, settings))
+    title = "Record processing, oldest first (verify replays it)" if n_steps else "Record processing: none"
+    processing = Table(
+        "processing_table", title, 27, 1, (Column("step", "Step: operation(arguments) [library]", "", TEXT, 46.0),),
+        n_steps, checked=True,
+    )  # fmt: skip
+    return Sheet(AUDIT, "Audit trail", (fields, settings, processing))

@@ -10,18 +10,26 @@ out in memory with the same layout, and every cell of every checked block
 compared with the stored one (numbers to a relative tolerance, text and
 formulas exactly). The record's SHA-256 is compared with the one on the
 Audit sheet.
+
+A processed record: the record as read is the Record sheet's ``raw_table``;
+the processing steps are read back from the Audit sheet's lines
+(``ProcessingStep.describe()`` text), replayed on it with
+``groundstep.core.replay_history`` and the result compared with the stored
+processed samples; the report is then recomputed with the same processing,
+so every block computed from the processed record is checked too.
 """
 
 from __future__ import annotations
 
+import ast
 import math
 import os
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any
 
 import numpy as np
 
-from groundstep.core import Record, collect_warnings
+from groundstep.core import ProcessingStep, Record, collect_warnings, replay_history
 
 from . import layout as lay
 from . import sheets
@@ -99,6 +107,10 @@ def verify_workbook(path: str | os.PathLike[str]) -> list[BlockCheck]:
         )
     record, settings, audit = _read_inputs(reader)
     checks: list[BlockCheck | None] = [_check_digest(record, audit["record_sha256"])]
+    steps = _read_steps(reader)
+    if steps:
+        checks.append(_check_replay(record, steps, reader))
+        settings = _with_processing(settings, steps)
     with collect_warnings():
         report = build_report(record, settings, command=audit["command"], source=audit["record_source"])
     addresses = formula_fields(report.layout)
@@ -163,8 +175,10 @@ class _Names:
 
 def _read_inputs(names: _Names) -> tuple[Record, ReportSettings, dict[str, str]]:
     unit = names.value("record_unit")
+    # a processed workbook keeps the record as read in its own table; the analysed one is recomputed
+    samples = names.numbers("raw_table_accel", required=False) or names.numbers("record_table_accel")
     try:
-        record = Record(np.asarray(names.numbers("record_table_accel")), names.number("dt"), unit, name=names.value("record_name") or "")
+        record = Record(np.asarray(samples), names.number("dt"), unit, name=names.value("record_name") or "")
     except (TypeError, ValueError) as exc:
         raise NotAResultWorkbook(f"the stored record cannot be read: {exc}") from None
     method: Any = names.value("method")
@@ -200,6 +214,64 @@ def _read_inputs(names: _Names) -> tuple[Record, ReportSettings, dict[str, str]]
     )
     audit = {key: str(names.value(key, required=False) or "") for key in ("record_sha256", "command", "record_source")}
     return record, settings, audit
+
+
+def _read_steps(names: _Names) -> tuple[ProcessingStep, ...]:
+    """The processing steps of the Audit sheet, one ``operation(name=value, ...) [library]`` line each."""
+    return tuple(_parse_step(str(line), index) for index, line in enumerate(names.column("processing_table_step", required=False)))
+
+
+def _parse_step(text: str, index: int) -> ProcessingStep:
+    """A `ProcessingStep` from its ``describe()`` line; arguments must be Python literals."""
+    call, _, library = text.strip().partition(" [")
+    try:
+        tree = ast.parse(call, mode="eval").body
+        if not isinstance(tree, ast.Call) or not isinstance(tree.func, ast.Name) or tree.args:
+            raise ValueError("not operation(name=value, ...)")
+        parameters = tuple((str(k.arg), ast.literal_eval(k.value)) for k in tree.keywords)
+    except (SyntaxError, ValueError) as exc:
+        raise NotAResultWorkbook(
+            f"processing step {index + 1} on the {sheets.AUDIT} sheet cannot be read ({text!r}: {exc})"
+        ) from None
+    return ProcessingStep(tree.func.id, parameters, library[:-1] if library.endswith("]") else library)
+
+
+def _check_replay(record: Record, steps: tuple[ProcessingStep, ...], names: _Names) -> BlockCheck:
+    """Replay the steps on the record as read and compare with the stored processed samples."""
+    try:
+        with collect_warnings():  # another library version is reported by the comparison itself
+            replayed = replay_history(record, steps).accel_in(record.unit)
+    except (TypeError, ValueError) as exc:
+        return BlockCheck(sheets.RECORD, "processing", "processing replay", False, 0, f"the replay failed: {exc}")
+    stored = np.asarray(names.numbers("record_table_accel"))
+    what = f"{len(steps)} processing step(s) replayed on the record as read"
+    if stored.shape != replayed.shape:
+        return BlockCheck(sheets.RECORD, "processing", "processing replay", False, stored.size,
+                          f"{what} give {replayed.size} samples, the sheet holds {stored.size}")  # fmt: skip
+    scale = float(np.max(np.abs(replayed), initial=0.0))
+    bad = np.flatnonzero(~np.isclose(stored, replayed, rtol=RELATIVE_TOLERANCE, atol=1e-12 * scale))
+    if bad.size:
+        first = int(bad[0])
+        return BlockCheck(
+            sheets.RECORD, "processing", "processing replay", False, stored.size,
+            f"{what}: {bad.size} of {stored.size} samples differ; first: row {first + 1} holds {stored[first]!r}, "
+            f"replayed {replayed[first]!r}",
+        )  # fmt: skip
+    return BlockCheck(sheets.RECORD, "processing", "processing replay", True, stored.size,
+                      f"{what} match the {stored.size} processed samples")  # fmt: skip
+
+
+def _with_processing(settings: ReportSettings, steps: tuple[ProcessingStep, ...]) -> ReportSettings:
+    """`settings` with the processing the steps describe (a step the settings cannot express is
+    left to the block comparison, which then reports the difference)."""
+    changes: dict[str, Any] = {}
+    for step in steps:
+        arguments = dict(step.parameters)
+        if step.operation == "baseline_correct":
+            changes["baseline_order"] = arguments.get("order")
+        elif step.operation == "bandpass":
+            changes["low_hz"], changes["high_hz"] = arguments.get("low_hz"), arguments.get("high_hz")
+    return replace(settings, **changes)
 
 
 def _optional_numbers(names: _Names, key: str, count: int) -> list[float | None]:

@@ -126,6 +126,7 @@ def label(name: str, kind: str, out: OutputUnits) -> str:
         "acceleration": out.acceleration,
         "energy": out.energy,
         "time": "s",
+        "arias": "m/s",  # Arias intensity keeps its SI unit
     }.get(kind, "-")
     return f"{name} [{unit}]"
 

@@ -1,7 +1,7 @@
 """The one table of worksheet functions: names, arguments, help texts and the quantities they return.
 
 Every ``STEP_`` function is declared once, with `worksheet_function`, in
-``functions.py``. The decorator records it in `FUNCTIONS` (name, summary,
+``functions.py`` or ``records.py``. The decorator records it in `FUNCTIONS` (name, summary,
 arguments with their help text, whether it spills) and applies the xlwings
 decorators from that same record, so the help Excel shows, the README table
 and any other spreadsheet binding are generated from one place.
@@ -35,6 +35,7 @@ __all__ = [
     "DUCTILITY_QUANTITIES",
     "DUCTILITY_SPECTRUM_QUANTITIES",
     "FUNCTIONS",
+    "MEASURE_QUANTITIES",
     "PEAK_QUANTITIES",
     "SPECTRUM_QUANTITIES",
     "Argument",
@@ -78,10 +79,23 @@ ARGUMENT_HELP: dict[str, str] = {
     "about_dt": "Optional time step [s]: with a period, reports the sub-steps used.",
     "about_unit": "Optional record unit: reports the units results come back in.",
     "about_period": "Optional period [s]: with a time step, reports the sub-steps used.",
+    "measure": (
+        "PGA (default), PGV, PGD, Arias intensity, D5-75, D5-95, CAV, bracketed duration, mean period, "
+        "spectrum intensity, predominant period, a time such as PGV time or D5-95 start; or a range of names (spills)."
+    ),
+    "bracket_threshold": "Acceleration level of the bracketed duration, in the record's unit. Blank: 0.05 g.",
+    "smoothing": "Blank: the raw amplitudes at every FFT frequency; konno-ohmachi: smoothed (Konno & Ohmachi 1998).",
+    "bandwidth": "Bandwidth coefficient b of the Konno-Ohmachi window, > 0 (larger smooths less). Blank: 40.",
+    "baseline_order": "Degree of the velocity trend removed by least squares, 1 to 10 (2 is usual). Blank: none.",
+    "low_hz": "Low corner of the Butterworth filter [Hz] (high-pass part). Blank: no high-pass.",
+    "high_hz": "High corner of the Butterworth filter [Hz] (low-pass part), below 1/(2 dt). Blank: no low-pass.",
+    "filter_order": "Order of one pass of the Butterworth filter, even and >= 2 (run forward and back). Blank: 4.",
+    "taper": "Fraction of the record inside the cosine taper before filtering, half at each end. Blank: 0.05.",
+    "keep_pads": "TRUE (default) keeps the zero pads added before filtering, so the result is longer than the record.",
 }
 
 #: Arguments that take a range of cells (passed as a two-dimensional list, error cells as text).
-RANGE_ARGUMENTS = frozenset({"accel", "periods", "dampings", "ductilities"})
+RANGE_ARGUMENTS = frozenset({"accel", "periods", "dampings", "ductilities", "measure"})
 
 
 class Quantity(NamedTuple):
@@ -89,7 +103,7 @@ class Quantity(NamedTuple):
 
     name: str
     attribute: str
-    kind: str  # "length", "velocity", "acceleration", "energy", "time", "count" or "ratio"
+    kind: str  # "length", "velocity", "acceleration", "energy", "time", "count", "ratio" or "arias" (m/s)
 
 
 # quantity as typed (matched ignoring case, "_" and "-") -> Quantity
@@ -129,6 +143,32 @@ DUCTILITY_SPECTRUM_QUANTITIES: dict[str, Quantity] = {
     "yield PSA": Quantity("yield PSA", "yield_pseudo_acceleration", "acceleration"),
     "peak displacement": Quantity("peak displacement", "peak_displacement", "length"),
     "achieved ductility": Quantity("achieved ductility", "achieved_ductility", "ratio"),
+}
+
+# measure as typed -> Quantity; the attribute is the key of groundstep.core.ground_motion_measures,
+# which also matches ("pgv_time" is "PGV time" once "_" and case are ignored)
+MEASURE_QUANTITIES: dict[str, Quantity] = {
+    "PGA": Quantity("PGA", "pga", "acceleration"),
+    "PGA time": Quantity("time of PGA", "pga_time", "time"),
+    "PGV": Quantity("PGV", "pgv", "velocity"),
+    "PGV time": Quantity("time of PGV", "pgv_time", "time"),
+    "PGD": Quantity("PGD", "pgd", "length"),
+    "PGD time": Quantity("time of PGD", "pgd_time", "time"),
+    "Arias intensity": Quantity("Arias intensity", "arias_intensity", "arias"),
+    "D5-75": Quantity("D5-75", "d5_75", "time"),
+    "D5-75 start": Quantity("D5-75 start", "d5_75_start", "time"),
+    "D5-75 end": Quantity("D5-75 end", "d5_75_end", "time"),
+    "D5-95": Quantity("D5-95", "d5_95", "time"),
+    "D5-95 start": Quantity("D5-95 start", "d5_95_start", "time"),
+    "D5-95 end": Quantity("D5-95 end", "d5_95_end", "time"),
+    "CAV": Quantity("CAV", "cav", "velocity"),
+    "bracketed duration": Quantity("bracketed duration", "bracketed_duration", "time"),
+    "bracketed start": Quantity("bracketed start", "bracketed_start", "time"),
+    "bracketed end": Quantity("bracketed end", "bracketed_end", "time"),
+    "bracket threshold": Quantity("bracket threshold", "bracket_threshold", "acceleration"),
+    "mean period": Quantity("mean period", "mean_period", "time"),
+    "spectrum intensity": Quantity("spectrum intensity", "spectrum_intensity", "length"),
+    "predominant period": Quantity("predominant period", "predominant_period", "time"),
 }
 
 

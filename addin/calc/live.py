@@ -1,0 +1,147 @@
+"""Fill result sheets into an open Calc document over UNO, from the same layout as the file writer.
+
+`CalcWriter` implements ``result.render.SheetWriter`` for a Calc document
+(a ``com.sun.star.sheet.SpreadsheetDocument`` reached over UNO): each block
+of cells is one ``setDataArray`` (values) or ``setFormulaArray`` (formulas)
+call, never a cell at a time (over a loopback connection one call costs
+about as much as a few cells). `fill_document` is the ``fill_results``
+macro's job for Calc: the named input cells of the open document, the
+report, the result sheets.
+
+The layout's formulas are written in Excel's A1 syntax (``Record!$B$9``,
+``,`` between arguments); `calc_formula` rewrites them into the syntax
+Calc's API takes (``$Record.$B$9``, ``;``).
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Sequence
+from typing import Any
+
+from groundstep.addin.result import layout as lay
+from groundstep.addin.result.render import SeriesRange, column_letter
+
+__all__ = ["CalcWriter", "calc_formula"]
+
+_TOKENS = re.compile(r'"(?:[^"]|"")*"|\'(?:[^\']|\'\')*\'!|[A-Za-z_][A-Za-z0-9_.]*!|,|[^"\',A-Za-z_]+|[A-Za-z_][A-Za-z0-9_.]*')
+_BOLD = 150.0  # com.sun.star.awt.FontWeight.BOLD
+_WIDTH_PER_CHARACTER = 190  # 1/100 mm per character of the default font (about 1.9 mm)
+_CHART_UNIT = 1000  # 1/100 mm per cm
+
+
+def calc_formula(formula: str) -> str:
+    """An Excel-syntax formula in Calc's API syntax: ``Sheet!A1`` -> ``$Sheet.A1``, ``,`` -> ``;``."""
+    out = []
+    for token in _TOKENS.findall(formula):
+        if token == ",":
+            out.append(";")
+        elif token.endswith("!") and not token.startswith('"'):
+            out.append("$" + token[:-1] + ".")
+        else:
+            out.append(token)
+    return "".join(out)
+
+
+class CalcWriter:
+    """`render.SheetWriter` into an open Calc document over UNO.
+
+    Result sheets written before by groundstep (their A1 holds the layout's
+    sheet title) are replaced; any other sheet of the same name stops the
+    write with an error naming it.
+    """
+
+    def __init__(self, document: Any, titles: dict[str, str]) -> None:
+        self.document = document
+        self.titles = titles
+
+    def _sheet(self, name: str) -> Any:
+        return self.document.Sheets.getByName(name)
+
+    def add_sheet(self, name: str) -> None:
+        sheets = self.document.Sheets
+        if sheets.hasByName(name):
+            if sheets.getByName(name).getCellByPosition(0, 0).getString() != self.titles.get(name):
+                raise ValueError(
+                    f"the document already has a sheet {name!r} that groundstep did not write; "
+                    "rename it so the result sheets can be added"
+                )
+            sheets.removeByName(name)
+        sheets.insertNewByName(name, sheets.getCount())
+
+    def write_cells(self, sheet: str, row: int, column: int, values: Sequence[Sequence[Any]], number_format, bold) -> None:
+        rows = [list(line) for line in values]
+        target = self._sheet(sheet).getCellRangeByPosition(column - 1, row - 1, column + len(rows[0]) - 2, row + len(rows) - 2)
+        if any(isinstance(v, str) and v.startswith("=") for line in rows for v in line):
+            target.setFormulaArray(tuple(tuple(_formula_text(v) for v in line) for line in rows))
+        else:
+            target.setDataArray(tuple(tuple(_data(v) for v in line) for line in rows))
+        if number_format:
+            target.NumberFormat = self._format_key(number_format)
+        if bold:
+            target.CharWeight = _BOLD
+
+    def define_name(self, name: str, sheet: str, reference: str) -> None:
+        names = self.document.NamedRanges
+        if names.hasByName(name):
+            names.removeByName(name)
+        origin = self._sheet(sheet).getCellByPosition(0, 0).getCellAddress()
+        names.addNewByName(name, f"${_quoted(sheet)}.{reference}", origin, 0)
+
+    def set_column_width(self, sheet: str, column: int, width: float) -> None:
+        self._sheet(sheet).Columns.getByIndex(column - 1).Width = int(width * _WIDTH_PER_CHARACTER)
+
+    def add_chart(self, sheet: str, chart: lay.Chart, x: SeriesRange, series) -> None:
+        from .office import import_uno
+
+        uno = import_uno()
+        target = self._sheet(sheet)
+        anchor = target.getCellByPosition(chart.column - 1, chart.row - 1).Position
+        frame = uno.createUnoStruct("com.sun.star.awt.Rectangle")
+        frame.X, frame.Y = anchor.X, anchor.Y
+        frame.Width, frame.Height = int(chart.width_cm * _CHART_UNIT), int(chart.height_cm * _CHART_UNIT)
+        ranges = [target.getCellRangeByName(_local(x)).getRangeAddress()]
+        ranges += [target.getCellRangeByName(_local(y)).getRangeAddress() for _, y in series]
+        charts = target.Charts
+        if charts.hasByName(chart.key):
+            charts.removeByName(chart.key)
+        charts.addNewByName(chart.key, frame, tuple(ranges), False, False)
+        document = charts.getByName(chart.key).getEmbeddedObject()
+        document.setDiagram(document.createInstance("com.sun.star.chart.XYDiagram"))
+        document.HasMainTitle = True
+        document.Title.String = chart.title
+        if chart.log_x:
+            document.getDiagram().getXAxis().Logarithmic = True
+
+    def _format_key(self, number_format: str) -> int:
+        from .office import import_uno
+
+        locale = import_uno().createUnoStruct("com.sun.star.lang.Locale")
+        formats = self.document.NumberFormats
+        key = formats.queryKey(number_format, locale, False)
+        return key if key >= 0 else formats.addNew(number_format, locale)
+
+
+def _formula_text(value: Any) -> str:
+    if value is None:
+        return ""
+    if isinstance(value, str):
+        return calc_formula(value) if value.startswith("=") else value
+    return repr(float(value)) if not isinstance(value, bool) else ("1" if value else "0")
+
+
+def _data(value: Any) -> Any:
+    if value is None:
+        return ""
+    if isinstance(value, str):
+        return value
+    return float(value)
+
+
+def _quoted(sheet: str) -> str:
+    return sheet if re.fullmatch(r"[A-Za-z_][A-Za-z0-9_]*", sheet) else "'" + sheet.replace("'", "''") + "'"
+
+
+def _local(series: SeriesRange) -> str:
+    letter = column_letter(series.column)
+    return f"{letter}{series.first_row}:{letter}{series.last_row}"

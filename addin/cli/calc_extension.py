@@ -1,0 +1,46 @@
+"""``groundstep calc-extension``: build, install or remove the LibreOffice Calc extension."""
+
+from __future__ import annotations
+
+import argparse
+import site
+
+from .common import EXIT_INPUT, EXIT_OK
+
+__all__ = ["add", "run"]
+
+
+def add(parser: argparse.ArgumentParser) -> None:
+    """The command's arguments: an action and its options."""
+    actions = parser.add_subparsers(title="actions", dest="action", metavar="ACTION", required=True)
+    build = actions.add_parser("build", help="write the extension (.oxt)")
+    build.add_argument("out", metavar="OUT.oxt")
+    build.add_argument("--site", action="append", metavar="DIR",
+                       help="site folder LibreOffice's Python adds to import groundstep (repeatable; "
+                            "default: this Python's site-packages)")  # fmt: skip
+    build.add_argument("--force", action="store_true", help="replace OUT.oxt if it exists")
+    for name, text in (("install", "check LibreOffice's Python, then install the extension"),
+                       ("remove", "remove the extension")):  # fmt: skip
+        action = actions.add_parser(name, help=text)
+        action.add_argument("--profile", metavar="DIR", help="LibreOffice user profile folder (default: the user's own)")
+        if name == "install":
+            action.add_argument("--python-env", metavar="DIR",
+                                help="virtual environment made from LibreOffice's Python that holds groundstep")  # fmt: skip
+
+
+def run(args: argparse.Namespace, command_line: str) -> int:
+    """Run the chosen action; problems come back as one line with the fix."""
+    from groundstep.addin.calc import install
+    from groundstep.addin.calc.extension import build_extension
+
+    try:
+        if args.action == "build":
+            print(f"wrote {build_extension(args.out, args.site or site.getsitepackages(), force=args.force)}")
+        elif args.action == "install":
+            print(install.install(args.profile, args.python_env))
+        else:
+            print(install.remove(args.profile))
+    except install.InstallError as exc:
+        print(f"groundstep calc-extension {args.action}: {exc}")
+        return EXIT_INPUT
+    return EXIT_OK
