@@ -464,4 +464,15 @@ def check_method(method: object, label: str = "method", *, yielding: bool = Fals
             f"{named(label)} beta must be > 0: the Newmark step is implicit (beta 0, the explicit "
             f"central-difference step, is not offered), got {resolved.beta!r}; use 'average' or 'linear'"
         )
+    if resolved.beta < MIN_BETA:
+        # the step's coefficients scale as 1/(beta h²): below 1e-6 they pass 1e6/h² and, for a
+        # subnormal beta, float64 altogether
+        raise ValueError(
+            f"{named(label)} beta must be >= {MIN_BETA:g} (the step divides by beta), got {resolved.beta!r}; "
+            "use 'average' or 'linear'"
+        )
     return resolved
+
+
+#: Smallest Newmark beta accepted (see `check_method`).
+MIN_BETA = 1e-6

@@ -195,6 +195,7 @@ def inelastic_response(
                 "(are all samples zero?); give `yield_coefficient` instead"
             )
         fy = elastic_force / reduction
+    _check_yield_force(fy, elastic_force)
     _warn_substeps(period, record.dt, substeps, resolved, ratio)
 
     omega = 2.0 * math.pi / period
@@ -416,6 +417,17 @@ def _check_settings(damping, hardening, method, max_step_ratio, tolerance, max_i
         _check_tolerance(tolerance),
         _budget.check_iterations(check_integer(max_iterations, "max_iterations", 1)),
     )  # fmt: skip
+
+
+def _check_yield_force(fy: float, elastic_force: float) -> None:
+    """Refuse a yield force [m/s²] that underflows to 0 or whose ratio to the elastic force leaves float64."""
+    if not fy > 0.0 or (elastic_force > 0.0 and not math.isfinite(elastic_force / max(fy, 1e-300))):
+        raise _budget.LimitError(
+            f"the yield force per unit mass {fy:.3g} m/s² (elastic force {elastic_force:.3g} m/s²) is not a positive "
+            "float64 the engine can divide by",
+            "give a reduction factor or yield coefficient of physical size (R of 1 to 100 is common practice)",
+            "give a reduction factor or yield coefficient of physical size (R of 1 to 100 is common practice)",
+        )
 
 
 def _check_tolerance(tolerance: object) -> float:

@@ -306,7 +306,18 @@ def _check_record(record: object) -> Record:
 def _check_ratio(max_step_ratio: float | None) -> float | None:
     if max_step_ratio is None:
         return None
-    return _validate.positive(max_step_ratio, "max_step_ratio")
+    ratio = _validate.positive(max_step_ratio, "max_step_ratio")
+    if ratio < _MIN_STEP_RATIO:
+        raise _budget.LimitError(
+            f"`max_step_ratio` must be >= {_MIN_STEP_RATIO:g}, got {ratio!r}",
+            "pass None to turn the accuracy limit off, or a ratio such as 0.1",
+        )
+    return ratio
+
+
+#: Smallest accepted `max_step_ratio`: times the smallest period (1e-12 s) it keeps
+#: limit·T a normal float64 (1e-21), so dt/(limit·T) cannot divide by an underflowed zero.
+_MIN_STEP_RATIO = 1e-9
 
 
 def _limit_text(method: Method, ratio: float | None) -> str:

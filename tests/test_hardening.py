@@ -389,3 +389,18 @@ def test_cache_is_bounded_by_bytes():
     for key in range(10):
         store.get_or_compute(key, lambda: np.zeros(50_000))  # 400 kB each
     assert len(store) == 2 and store.nbytes <= 1_000_000
+
+
+@pytest.mark.parametrize(
+    ("call", "pattern"),
+    [
+        (lambda r: elastic_spectrum(r, [0.05], max_step_ratio=5e-324), r"`max_step_ratio` must be >= 1e-09"),
+        (lambda r: inelastic_response(r, 0.5, reduction_factor=1e300), r"yield force per unit mass .* not a positive"),
+        (lambda r: linear_response(r, 0.3, 0.02, (1e-300, 0.5)), r"beta must be >= 1e-06"),
+    ],
+)
+def test_long_campaign_findings_are_refused(call, pattern):
+    """Cases the 3,000-example campaign found (underflowing ratio, strength, beta) are refused with the bound."""
+    record = Record([-2.36, 0.02, 2.4, -1.0, 0.5], 0.01, "m/s2")
+    with pytest.raises(ValueError, match=pattern):
+        call(record)
