@@ -28,7 +28,7 @@ from fuzz_cases import (  # noqa: E402 - the strategies live beside the tests
 )
 from hypothesis import HealthCheck, given, settings  # noqa: E402
 
-from groundstep.addin.worksheet import functions  # noqa: E402, F401 - fills the function table
+from groundstep.addin import functions  # noqa: E402, F401 - fills the function table (every STEP_ module)
 from groundstep.addin.worksheet.registry import FUNCTIONS  # noqa: E402
 from groundstep.core import collect_warnings  # noqa: E402
 

@@ -395,7 +395,8 @@ def test_cache_is_bounded_by_bytes():
     ("call", "pattern"),
     [
         (lambda r: elastic_spectrum(r, [0.05], max_step_ratio=5e-324), r"`max_step_ratio` must be >= 1e-09"),
-        (lambda r: inelastic_response(r, 0.5, reduction_factor=1e300), r"yield force per unit mass .* not a positive"),
+        (lambda r: inelastic_response(Record([-1.83e-124] * 3, 0.02), 0.05, reduction_factor=1e300),
+         r"yield force per unit mass .* not a positive"),  # 3.6e-123 m/s² / 1e300 underflows to 0
         (lambda r: linear_response(r, 0.3, 0.02, (1e-300, 0.5)), r"beta must be >= 1e-06"),
     ],
 )
