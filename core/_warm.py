@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import importlib
 import time
+from collections.abc import Callable
 
 import numpy as np
 
@@ -35,7 +36,7 @@ def warm_up() -> dict[str, float]:
     from .record import Record
 
     record = Record(np.sin(np.linspace(0.0, 6.0, 64)), dt=0.02, unit="m/s2")
-    calls = {
+    calls: dict[str, Callable[[], object]] = {
         "elastic_spectrum (Newmark)": lambda: elastic_spectrum(record, [0.0, 0.01, 0.5], [0.05]),
         "elastic_spectrum (exact)": lambda: elastic_spectrum(record, [0.5], [0.05], method="exact"),
         "linear_response": lambda: linear_response(record, 0.01),
