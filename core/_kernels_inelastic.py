@@ -38,7 +38,7 @@ interleaved so the loop over oscillators vectorises) call them.
 from __future__ import annotations
 
 import numpy as np
-from numba import njit, prange
+from ._jit import njit, prange
 
 from ._newmark import newmark_constants
 
