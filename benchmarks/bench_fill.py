@@ -20,10 +20,10 @@ import numpy as np
 from openpyxl import Workbook
 
 from groundstep.addin.cli import main
-from groundstep.addin.result.content import build_report
-from groundstep.addin.result.offline import write_report
 from groundstep.addin.cli.common import settings_from_options
 from groundstep.addin.package.inputs import read_input_workbook
+from groundstep.addin.result.content import build_report
+from groundstep.addin.result.offline import write_report
 
 SAMPLES = 40_000
 DT = 0.005  # s

@@ -25,6 +25,7 @@ had been resampled linearly onto the sub-step grid.
 from __future__ import annotations
 
 import numpy as np
+
 from ._jit import njit, prange
 
 #: Rows of a coefficient array (10, n_oscillators).
