@@ -12,6 +12,7 @@ cancel and the memory of the driver stays flat for any number of records.
 
 from __future__ import annotations
 
+import multiprocessing
 import os
 import signal
 import time
@@ -171,7 +172,11 @@ def _serial() -> Iterator[tuple[Executor | None, int, int | None]]:
 
 @contextmanager
 def _process_pool(workers: int) -> Iterator[tuple[Executor | None, int, int | None]]:
-    executor = ProcessPoolExecutor(max_workers=workers, initializer=_worker_start)
+    # Workers are never forked from this process: it may already run numba's OpenMP threads, which a
+    # fork would copy half-alive. The fork server (or a spawned interpreter) starts them clean.
+    methods = multiprocessing.get_all_start_methods()
+    context = multiprocessing.get_context("forkserver" if "forkserver" in methods else "spawn")
+    executor = ProcessPoolExecutor(max_workers=workers, mp_context=context, initializer=_worker_start)
     try:
         yield executor, 2 * workers, None
     finally:

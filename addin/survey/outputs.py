@@ -87,6 +87,9 @@ class ResultsManifest:
     def __init__(self, out_dir: str | os.PathLike[str], entries: Sequence[RecordEntry]) -> None:
         self.out_dir = Path(out_dir)
         (self.out_dir / RECORDS_FOLDER).mkdir(parents=True, exist_ok=True)
+        for folder in (self.out_dir, self.out_dir / RECORDS_FOLDER):  # left by a batch killed mid-write
+            for stale in folder.glob(".*.tmp"):
+                stale.unlink(missing_ok=True)
         self.path = self.out_dir / RESULTS_FILE
         self._order = [entry.file for entry in entries]
         self._labels = {entry.file: entry.label for entry in entries}
