@@ -7,17 +7,17 @@ periods in seconds. ``DesignSpectrum.sa_in("m/s2")`` converts.
 from __future__ import annotations
 
 import math
-import warnings
 from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from . import _validate
-from ._units import ACCELERATION_UNITS, normalise_unit
+from . import _notices, _validate
+from .checks import check_damping, check_periods, check_positive
+from .units import ACCELERATION_UNITS, normalise_unit
 
-__all__ = ["DESIGN_STANDARDS", "DesignSpectrum", "DesignSpectrumWarning", "design_spectrum"]
+__all__ = ["DESIGN_STANDARDS", "DesignSpectrum", "DesignSpectrumWarning", "EN1998_GROUND_PARAMETERS", "design_spectrum"]
 
 
 class DesignSpectrumWarning(UserWarning):
@@ -215,7 +215,7 @@ def design_spectrum(periods: ArrayLike, standard: str, **parameters: Any) -> Des
     >>> design_spectrum([0.3], "EN1998", ag=0.25, ground_type="C").sa.round(4)
     array([0.7188])
     """
-    period_values = _validate.periods(periods, "periods")
+    period_values = check_periods(periods, "periods")
     if not isinstance(standard, str):
         raise TypeError(f"`standard` must be a string, got {type(standard).__name__} {standard!r}")
     key = {name.lower(): name for name in DESIGN_STANDARDS}.get(standard.strip().lower())
@@ -243,9 +243,9 @@ def _check_parameter_names(standard: str, parameters: dict[str, Any]) -> dict[st
 
 
 def _asce7(periods: NDArray[np.float64], given: dict[str, Any]) -> DesignSpectrum:
-    sds = _validate.positive(given["sds"], "sds")
-    sd1 = _validate.positive(given["sd1"], "sd1")
-    tl = _validate.positive(given["tl"], "tl")
+    sds = check_positive(given["sds"], "sds")
+    sd1 = check_positive(given["sd1"], "sd1")
+    tl = check_positive(given["tl"], "tl")
     t0 = 0.2 * sd1 / sds
     ts = sd1 / sds
     if not tl > ts:
@@ -264,9 +264,9 @@ def _asce7(periods: NDArray[np.float64], given: dict[str, Any]) -> DesignSpectru
 
 
 def _en1998(periods: NDArray[np.float64], given: dict[str, Any]) -> DesignSpectrum:
-    ag = _validate.positive(given["ag"], "ag")
-    importance = _validate.positive(given["importance_factor"], "importance_factor")
-    damping = float(_validate.dampings(given["damping"], "damping")[0])
+    ag = check_positive(given["ag"], "ag")
+    importance = check_positive(given["importance_factor"], "importance_factor")
+    damping = check_damping(given["damping"], "damping")
     kind = given["spectrum_type"]
     if isinstance(kind, bool) or kind not in (1, 2):
         raise ValueError(f"`spectrum_type` must be 1 or 2 (EN 1998-1:2004 §3.2.2.2(2)P), got {kind!r}")
@@ -282,11 +282,12 @@ def _en1998(periods: NDArray[np.float64], given: dict[str, Any]) -> DesignSpectr
     design_ag = ag * importance
     plateau = 2.5 * design_ag * soil * eta
     if np.any(periods > EN1998_LONGEST_PERIOD):
-        warnings.warn(
-            f"EN 1998-1:2004 eq. (3.5) is given for periods up to {EN1998_LONGEST_PERIOD:g} s; "
-            f"{int(np.count_nonzero(periods > EN1998_LONGEST_PERIOD))} period(s) up to {periods.max():g} s "
-            "extend it (the standard's Annex A gives the displacement spectrum beyond)",
-            DesignSpectrumWarning,
+        _notices.warn(
+            DesignSpectrumWarning(
+                f"EN 1998-1:2004 eq. (3.5) is given for periods up to {EN1998_LONGEST_PERIOD:g} s; "
+                f"{int(np.count_nonzero(periods > EN1998_LONGEST_PERIOD))} period(s) up to {periods.max():g} s "
+                "extend it (the standard's Annex A gives the displacement spectrum beyond)"
+            ),
             stacklevel=3,
         )
     safe = np.where(periods > 0.0, periods, 1.0)

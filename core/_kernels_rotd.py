@@ -1,0 +1,257 @@
+"""Compiled kernel for orientation-independent spectra (numba, cached on disk).
+
+Private layer: plain float64 arrays and floats in, arrays out, no checks.
+
+Each oscillator is stepped twice at once, under the x and the y component,
+with the shared affine map of ``_kernels._advance``. By linearity the
+response to the ground motion turned by θ is u(θ) = u_x·cosθ + u_y·sinθ, so
+the peak over time in direction θ is the support function of the point set
+{±(u_x, u_y)} over every sub-step: the largest projection of a vertex of its
+convex hull on (cosθ, sinθ). Points strictly inside the hull never decide a
+peak, so the kernel keeps only points that may be hull vertices:
+
+* it tracks, for ``N_DIRECTIONS`` fixed directions, the largest projection
+  and the point that reached it (a "witness"); the witnesses and their
+  mirror images, in order of direction, span a convex polygon Q that lies
+  inside the hull of the points seen so far;
+* a point inside Q (first tested cheaply against the circle inscribed in Q,
+  then edge by edge) is inside the final hull and is dropped; any other
+  point is kept in a buffer;
+* at the end, the peak for each requested angle is the largest |projection|
+  over the witnesses and the buffered points outside the final Q.
+
+This gives the same maxima as projecting every point (to round-off of the
+inside tests), for any motion, including one polarised along a line (Q is
+then a segment; the test against Q's largest vertex radius keeps it exact).
+Q is rebuilt only when a point that did not move a witness needs the test,
+so a growing orbit does not rebuild it at every step.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from numba import njit, prange
+
+from ._kernels import CHUNK, _advance
+
+#: Fixed directions of the inner polygon, spread over [0°, 180°): eight gives
+#: a polygon within 1 - cos(11.25°) ≈ 2 % of a round orbit's hull.
+N_DIRECTIONS = 8
+#: Columns of `extremes`: max |u_x|, max |u_y|, max radius, then u_x and u_y at it.
+N_EXTREMES = 5
+_FIRST_BUFFER = 1024
+
+
+@njit(cache=True)
+def _rebuild(wx, wy, nx, ny, offset, vertex_r2, j):
+    """Edge lines of polygon Q of oscillator `j`; returns its squared inscribed radius.
+
+    Q has the vertices w_0 .. w_{K-1}, -w_0 .. -w_{K-1} (counter-clockwise),
+    w_k = (wx[j, k], wy[j, k]). Edge k runs from vertex k to vertex k + 1
+    (vertex K is -w_0) and edge K + k is its mirror image, so z is inside
+    or on Q exactly when |n_k·z| <= c_k for every k < K, with
+    n_k = (dy, -dx) and c_k = dy·ax - dx·ay for the edge a -> b, d = b - a
+    (cross(b - a, z - a) >= 0). The circle about the origin inside Q has
+    the radius of the nearest edge line, min c_k/|d| (Q is convex and holds
+    the origin). A repeated vertex (no edge) gives n = 0, c = 0: no limit.
+    Also sets ``vertex_r2[j]``, the squared largest vertex radius.
+    """
+    k_count = wx.shape[1]
+    inner2 = math.inf
+    largest = 0.0
+    for k in range(k_count):
+        ax, ay = wx[j, k], wy[j, k]
+        if k + 1 < k_count:
+            bx, by = wx[j, k + 1], wy[j, k + 1]
+        else:
+            bx, by = -wx[j, 0], -wy[j, 0]
+        dx, dy = bx - ax, by - ay
+        c = dy * ax - dx * ay
+        nx[j, k] = dy
+        ny[j, k] = -dx
+        offset[j, k] = c
+        length2 = dx * dx + dy * dy
+        if length2 > 0.0:
+            inner2 = min(inner2, c * c / length2)
+        largest = max(largest, ax * ax + ay * ay)
+    vertex_r2[j] = largest
+    return 0.0 if inner2 == math.inf else min(inner2, largest)
+
+
+@njit(cache=True, inline="always")
+def _inside(nx, ny, offset, vertex_r2, j, zx, zy):
+    """True when z lies inside or on polygon Q of oscillator `j` (edge lines from `_rebuild`).
+
+    The test against the largest vertex radius (`vertex_r2`) makes it exact
+    for a degenerate Q too: a segment through the origin (every edge line is
+    the segment's line) or the origin alone (no edges).
+    """
+    if zx * zx + zy * zy > vertex_r2[j]:
+        return False
+    for k in range(nx.shape[1]):
+        if abs(nx[j, k] * zx + ny[j, k] * zy) > offset[j, k]:
+            return False
+    return True
+
+
+# Rows of the per-chunk work array: two states, radius², running peaks, then the map.
+_UX, _VX, _UY, _VY, _R2, _PX, _PY = 0, 1, 2, 3, 4, 5, 6
+_A0 = 7  # rows _A0 .. _A0 + 9 hold the ten coefficients
+_ROWS = _A0 + 10
+
+
+@njit(cache=True)
+def _chunk(load_x, load_y, coef, s, lo, m, dcos, dsin, cosines, sines, peaks, extremes):
+    """Oscillators lo .. lo + m - 1 of `rotd_peaks`, which share the sub-step count `s`.
+
+    A plain (not parallel) function, so its buffers may grow freely.
+    """
+    n_steps = load_x.shape[0] - 1
+    n_angles = cosines.shape[0]
+    w = np.zeros((_ROWS, CHUNK))
+    for j in range(m):
+        for r in range(10):
+            w[_A0 + r, j] = coef[r, lo + j]
+    a = w[_A0:, :]
+    reach = np.zeros((CHUNK, N_DIRECTIONS))  # largest |projection| on each fixed direction
+    wx = np.zeros((CHUNK, N_DIRECTIONS))  # witnesses, signed so that w·d = reach
+    wy = np.zeros((CHUNK, N_DIRECTIONS))
+    nx = np.zeros((CHUNK, N_DIRECTIONS))  # edge lines of each polygon Q (see _rebuild)
+    ny = np.zeros((CHUNK, N_DIRECTIONS))
+    offset = np.zeros((CHUNK, N_DIRECTIONS))
+    inner2 = np.zeros(CHUNK)  # squared inscribed radius of each polygon Q
+    vertex_r2 = np.zeros(CHUNK)  # squared largest vertex radius of each polygon Q
+    stale = np.zeros(CHUNK, dtype=np.bool_)  # witnesses moved since Q's edges were built
+    peak_r2 = np.zeros(CHUNK)
+    at_x = np.zeros(CHUNK)
+    at_y = np.zeros(CHUNK)
+    kept = np.zeros(CHUNK, dtype=np.int64)
+    buffer_x = np.empty((CHUNK, _FIRST_BUFFER))
+    buffer_y = np.empty((CHUNK, _FIRST_BUFFER))
+    for i in range(n_steps):
+        px0 = load_x[i]
+        py0 = load_y[i]
+        dpx = (load_x[i + 1] - px0) / s
+        dpy = (load_y[i + 1] - py0) / s
+        for sub in range(s):
+            pxa = px0 + dpx * sub
+            pxb = px0 + dpx * (sub + 1)
+            pya = py0 + dpy * sub
+            pyb = py0 + dpy * (sub + 1)
+            excess = 0.0
+            for j in range(m):
+                ux, vx = _advance(a, j, w[_UX, j], w[_VX, j], pxa, pxb)
+                uy, vy = _advance(a, j, w[_UY, j], w[_VY, j], pya, pyb)
+                w[_UX, j] = ux
+                w[_VX, j] = vx
+                w[_UY, j] = uy
+                w[_VY, j] = vy
+                w[_PX, j] = max(w[_PX, j], abs(ux))
+                w[_PY, j] = max(w[_PY, j], abs(uy))
+                r2 = ux * ux + uy * uy
+                w[_R2, j] = r2
+                excess = max(excess, r2 - inner2[j])
+            if excess <= 0.0:
+                continue  # every point inside its inscribed circle
+            for j in range(m):
+                r2 = w[_R2, j]
+                if r2 <= inner2[j]:
+                    continue  # inside the inscribed circle of Q, so inside the hull
+                ux = w[_UX, j]
+                uy = w[_UY, j]
+                if r2 > peak_r2[j]:
+                    peak_r2[j] = r2
+                    at_x[j] = ux
+                    at_y[j] = uy
+                grew = False
+                for k in range(N_DIRECTIONS):
+                    projection = ux * dcos[k] + uy * dsin[k]
+                    if abs(projection) > reach[j, k]:
+                        reach[j, k] = abs(projection)
+                        sign = 1.0 if projection > 0.0 else -1.0
+                        wx[j, k] = sign * ux
+                        wy[j, k] = sign * uy
+                        grew = True
+                if grew:
+                    stale[j] = True  # Q is rebuilt when next needed; inner2 stays valid (Q only grows)
+                else:
+                    if stale[j]:
+                        inner2[j] = _rebuild(wx, wy, nx, ny, offset, vertex_r2, j)
+                        stale[j] = False
+                    if _inside(nx, ny, offset, vertex_r2, j, ux, uy):
+                        continue  # inside Q, so inside the hull
+                if kept[j] == buffer_x.shape[1]:
+                    size = buffer_x.shape[1]
+                    bigger_x = np.empty((CHUNK, 2 * size))
+                    bigger_y = np.empty((CHUNK, 2 * size))
+                    bigger_x[:, :size] = buffer_x
+                    bigger_y[:, :size] = buffer_y
+                    buffer_x, buffer_y = bigger_x, bigger_y
+                buffer_x[j, kept[j]] = ux
+                buffer_y[j, kept[j]] = uy
+                kept[j] += 1
+    best = np.empty(n_angles)  # a local row: the angle loops vectorise
+    for j in range(m):
+        row = lo + j
+        if stale[j]:
+            _rebuild(wx, wy, nx, ny, offset, vertex_r2, j)
+        for q in range(n_angles):
+            best[q] = 0.0
+        for k in range(N_DIRECTIONS):
+            zx = wx[j, k]
+            zy = wy[j, k]
+            for q in range(n_angles):
+                best[q] = max(best[q], abs(zx * cosines[q] + zy * sines[q]))
+        for point in range(kept[j]):
+            zx = buffer_x[j, point]
+            zy = buffer_y[j, point]
+            if _inside(nx, ny, offset, vertex_r2, j, zx, zy):
+                continue  # inside the final Q: bounded by the witnesses counted above
+            for q in range(n_angles):
+                best[q] = max(best[q], abs(zx * cosines[q] + zy * sines[q]))
+        for q in range(n_angles):
+            peaks[row, q] = best[q]
+        extremes[row, 0] = w[_PX, j]
+        extremes[row, 1] = w[_PY, j]
+        extremes[row, 2] = math.sqrt(peak_r2[j])
+        extremes[row, 3] = at_x[j]
+        extremes[row, 4] = at_y[j]
+
+
+@njit(cache=True, parallel=True)
+def rotd_peaks(load_x, load_y, coef, substeps, starts, cosines, sines, peaks, extremes):
+    """Peak |u(θ)| over every sub-step for each oscillator and angle, from rest.
+
+    Parameters
+    ----------
+    load_x, load_y : (n_samples,) float64, p = -ü_g of the two components [m/s²]
+    coef : (10, n_osc) float64, the map of ONE sub-step (h = dt / s)
+    substeps : (n_osc,) int64, sub-steps s per record step, equal within a chunk
+    starts : (n_chunks + 1,) int64, chunk boundaries (``_kernels.chunk_starts``)
+    cosines, sines : (n_angles,) float64, cosθ and sinθ of the angles
+    peaks : (n_osc, n_angles) float64, filled with max over t of
+        |u_x cosθ + u_y sinθ|
+    extremes : (n_osc, N_EXTREMES) float64, filled with max |u_x|, max |u_y|,
+        max sqrt(u_x² + u_y²), and u_x, u_y where that maximum first occurs
+
+    As in ``_kernels.peaks``, the oscillators of a chunk are stepped
+    together (the loop over them vectorises) with the load linear inside
+    each record step, and chunks run in parallel threads, the chunks with
+    the most sub-steps first (call it under ``numba.parallel_chunksize(1)``
+    so that threads take chunks one at a time). After each
+    sub-step a second loop sends the few points outside their oscillator's
+    inscribed circle to the hull filter described in the module docstring.
+    """
+    dcos = np.empty(N_DIRECTIONS)
+    dsin = np.empty(N_DIRECTIONS)
+    for k in range(N_DIRECTIONS):
+        dcos[k] = math.cos(math.pi * k / N_DIRECTIONS)
+        dsin[k] = math.sin(math.pi * k / N_DIRECTIONS)
+    n_chunks = starts.shape[0] - 1
+    for step in prange(n_chunks):
+        chunk = n_chunks - 1 - step  # the most sub-steps (the most work) first
+        lo = starts[chunk]
+        _chunk(load_x, load_y, coef, substeps[lo], lo, starts[chunk + 1] - lo, dcos, dsin, cosines, sines,
+               peaks, extremes)
