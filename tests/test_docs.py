@@ -20,7 +20,7 @@ CORE_MODULES = sorted(
 #: Public modules whose names are plain tables or result classes without an Examples section.
 _NO_EXAMPLES = {"groundstep.core.defaults", "groundstep.core.results", "groundstep.core.inelastic_results"}
 #: The adapter subpackages in import order: each may import only those after it (and core's public modules).
-ADAPTER_LAYERS = ("cli", "calc", "live", "functions", "package", "result", "worksheet", "common")
+ADAPTER_LAYERS = ("cli", "survey", "calc", "live", "functions", "package", "result", "worksheet", "common")
 
 
 def _readme_block(marker: str) -> str:
