@@ -240,7 +240,7 @@ def elastic_spectrum(
         found = np.empty((3, order.size))
         zeros = np.zeros(order.size)
         starts = _kernels.chunk_starts(used[order])
-        _kernels.peaks(-record.accel, np.ascontiguousarray(coef[:, order]), used[order], starts, zeros, zeros, found)
+        _kernels.spectrum_peaks(-record.accel, np.ascontiguousarray(coef[:, order]), used[order], starts, zeros, zeros, found)
         unsorted = np.empty_like(found)
         unsorted[:, order] = found
         peaks[:, moving] = unsorted
