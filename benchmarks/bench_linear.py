@@ -25,7 +25,7 @@ import warnings
 
 import numpy as np
 
-from groundstep.core import Record, SubstepWarning, elastic_spectrum, period_grid
+from groundstep.core import Record, SubstepWarning, _kernels, elastic_spectrum, linear_response, period_grid
 from groundstep.core.linear import _step_coefficients
 from groundstep.core.methods import resolve_method
 
@@ -84,6 +84,27 @@ def first_call_seconds(cache_dir: str) -> float:
     return float(out.stdout.strip())
 
 
+def small_calls(record: Record) -> None:
+    """One oscillator end to end, and a small spectrum on one thread against the parallel kernel."""
+    short = Record(record.accel[:2000], dt=record.dt)
+    linear_response(short, 1.0)
+    repeat = 2000
+    seconds = best_of(lambda: [linear_response(short, 1.0) for _ in range(repeat)]) / repeat
+    print(f"3. linear_response, one oscillator, 2,000 samples, end to end: {seconds * 1e6:6.1f} us "
+          f"(target 30 us: ratio {seconds / 30e-6:4.2f})")
+    periods = period_grid(0.1, 10.0, 20)
+    coef, used = _step_coefficients(short.dt, periods, np.full(20, 0.05), resolve_method("average"), 0.1)
+    starts = _kernels.chunk_starts(used)
+    zeros, out, load = np.zeros(20), np.empty((3, 20)), -short.accel
+    timings = {}
+    for label, kernel in (("one thread", _kernels.peaks_serial), ("parallel", _kernels.peaks)):
+        kernel(load, coef, used, starts, zeros, zeros, out)
+        timings[label] = best_of(lambda k=kernel: [k(load, coef, used, starts, zeros, zeros, out) for _ in range(50)]) / 50
+    print(f"   20 periods x 2,000 steps (below the serial threshold of {_kernels.SERIAL_WORK:,} oscillator-steps): "
+          f"one thread {timings['one thread'] * 1e6:.0f} us, parallel {timings['parallel'] * 1e6:.0f} us "
+          f"(parallel / one thread {timings['parallel'] / timings['one thread']:.1f}x)")
+
+
 def main() -> None:
     record = invented_record()
     warnings.simplefilter("ignore", SubstepWarning)
@@ -121,6 +142,8 @@ def main() -> None:
         print(f"  {method:8s} {seconds * 1e3:8.2f} ms   {seconds / steps * 1e9:6.3f} ns per record oscillator-step, "
               f"{seconds / sub_steps * 1e9:6.3f} ns per oscillator-sub-step "
               f"({sub_steps / steps:.2f} sub-steps per record step on average)")
+
+    small_calls(record)
 
     with tempfile.TemporaryDirectory() as cache_dir:
         cold = first_call_seconds(cache_dir)

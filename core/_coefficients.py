@@ -27,8 +27,11 @@ def newmark(omega, zeta, h, beta, gamma) -> NDArray[np.float64]:
     The step is ``_newmark.linear_step`` on the constants of
     ``_newmark.newmark_constants``, the ones the yielding kernels use. It is
     linear in (u0, v0, p0, p1), so its coefficients are the step's response
-    to each unit input in turn.
+    to each unit input in turn. One oscillator is evaluated on Python floats
+    (the same IEEE double arithmetic, without numpy's per-call cost).
     """
+    if np.size(omega) == 1 and np.size(zeta) == 1 and np.size(h) == 1:
+        return _newmark_one(float(np.ravel(omega)[0]), float(np.ravel(zeta)[0]), float(np.ravel(h)[0]), beta, gamma)
     omega = np.asarray(omega, dtype=np.float64)
     zeta = np.asarray(zeta, dtype=np.float64)
     h = np.asarray(h, dtype=np.float64)
@@ -43,6 +46,19 @@ def newmark(omega, zeta, h, beta, gamma) -> NDArray[np.float64]:
         out[row_u], out[row_v] = linear_step(constants, c, k, *unit_input)
     out[8] = 2.0 * zeta * omega
     out[9] = omega * omega
+    return out
+
+
+def _newmark_one(omega: float, zeta: float, h: float, beta: float, gamma: float) -> NDArray[np.float64]:
+    """`newmark` for one oscillator, on floats: (10, 1)."""
+    constants = newmark_constants.py_func(h, beta, gamma)
+    c, k = 2.0 * zeta * omega, omega * omega
+    u_u, v_u = linear_step(constants, c, k, 1.0, 0.0, 0.0, 0.0)
+    u_v, v_v = linear_step(constants, c, k, 0.0, 1.0, 0.0, 0.0)
+    u_p0, v_p0 = linear_step(constants, c, k, 0.0, 0.0, 1.0, 0.0)
+    u_p1, v_p1 = linear_step(constants, c, k, 0.0, 0.0, 0.0, 1.0)
+    out = np.empty((N_COEFFICIENTS, 1))
+    out[:, 0] = u_u, u_v, v_u, v_v, u_p0, u_p1, v_p0, v_p1, c, k
     return out
 
 

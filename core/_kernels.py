@@ -25,7 +25,8 @@ had been resampled linearly onto the sub-step grid.
 from __future__ import annotations
 
 import numpy as np
-from numba import njit, prange
+
+from ._jit import njit, prange
 
 #: Rows of a coefficient array (10, n_oscillators).
 N_COEFFICIENTS = 10
@@ -65,6 +66,86 @@ def chunk_starts(substeps, size=CHUNK):
     return np.array(starts, dtype=np.int64)
 
 
+#: Sub-steps each oscillator takes per visit of the chunk loop in `peaks`:
+#: the state and coefficients stay in registers over these steps and the loop
+#: over the chunk's oscillators is still the innermost one, so it vectorises.
+VISIT = 4
+#: Oscillator-steps below which `spectrum_peaks` runs on the calling thread:
+#: waking a second thread on a busy machine costs milliseconds, more than a
+#: small spectrum takes (measured by benchmarks/bench_linear.py).
+SERIAL_WORK = 2_000_000
+
+
+@njit(cache=True, inline="always")
+def _visit(w, m, pa0, pb0, pa1, pb1, pa2, pb2, pa3, pb3):
+    """Four sub-steps of every oscillator of a chunk (loads (pa, pb) of each sub-step)."""
+    a = w[_A0:, :]
+    for j in range(m):
+        u, v = w[_U, j], w[_V, j]
+        c, k = a[8, j], a[9, j]
+        pu, pv, pt = w[_PU, j], w[_PV, j], w[_PA, j]
+        u, v = _advance(a, j, u, v, pa0, pb0)
+        pu, pv, pt = max(pu, abs(u)), max(pv, abs(v)), max(pt, abs(c * v + k * u))
+        u, v = _advance(a, j, u, v, pa1, pb1)
+        pu, pv, pt = max(pu, abs(u)), max(pv, abs(v)), max(pt, abs(c * v + k * u))
+        u, v = _advance(a, j, u, v, pa2, pb2)
+        pu, pv, pt = max(pu, abs(u)), max(pv, abs(v)), max(pt, abs(c * v + k * u))
+        u, v = _advance(a, j, u, v, pa3, pb3)
+        pu, pv, pt = max(pu, abs(u)), max(pv, abs(v)), max(pt, abs(c * v + k * u))
+        w[_U, j], w[_V, j] = u, v
+        w[_PU, j], w[_PV, j], w[_PA, j] = pu, pv, pt
+
+
+@njit(cache=True, inline="always")
+def _single(w, m, pa, pb):
+    """One sub-step of every oscillator of a chunk."""
+    a = w[_A0:, :]
+    for j in range(m):
+        u, v = _advance(a, j, w[_U, j], w[_V, j], pa, pb)
+        w[_U, j], w[_V, j] = u, v
+        w[_PU, j] = max(w[_PU, j], abs(u))
+        w[_PV, j] = max(w[_PV, j], abs(v))
+        w[_PA, j] = max(w[_PA, j], abs(a[8, j] * v + a[9, j] * u))
+
+
+@njit(cache=True, inline="always", fastmath=True)
+def _chunk(load, coef, substeps, starts, u0, v0, out, chunk):
+    """Peaks of the oscillators of one chunk (see `peaks`)."""
+    n_steps = load.shape[0] - 1
+    lo = starts[chunk]
+    m = starts[chunk + 1] - lo
+    s = substeps[lo]
+    w = np.zeros((_ROWS, CHUNK))
+    for j in range(m):
+        for r in range(N_COEFFICIENTS):
+            w[_A0 + r, j] = coef[r, lo + j]
+        w[_U, j] = u0[lo + j]
+        w[_V, j] = v0[lo + j]
+        w[_PU, j] = abs(u0[lo + j])
+        w[_PV, j] = abs(v0[lo + j])
+        w[_PA, j] = abs(w[_A0 + 8, j] * v0[lo + j] + w[_A0 + 9, j] * u0[lo + j])
+    # the loads (pa, pb) of every sub-step in order, queued four at a time
+    queue = np.empty((2, VISIT))
+    queued = 0
+    for i in range(n_steps):
+        p0 = load[i]
+        dp = (load[i + 1] - p0) / s
+        for sub in range(s):
+            queue[0, queued] = p0 + dp * sub
+            queue[1, queued] = p0 + dp * (sub + 1)
+            queued += 1
+            if queued == VISIT:
+                _visit(w, m, queue[0, 0], queue[1, 0], queue[0, 1], queue[1, 1],
+                       queue[0, 2], queue[1, 2], queue[0, 3], queue[1, 3])  # fmt: skip
+                queued = 0
+    for q in range(queued):
+        _single(w, m, queue[0, q], queue[1, q])
+    for j in range(m):
+        out[0, lo + j] = w[_PU, j]
+        out[1, lo + j] = w[_PV, j]
+        out[2, lo + j] = w[_PA, j]
+
+
 @njit(cache=True, parallel=True, fastmath=True)
 def peaks(load, coef, substeps, starts, u0, v0, out):
     """Peak |u|, |v| and |ü + ü_g| of many oscillators, read at every sub-step.
@@ -82,41 +163,27 @@ def peaks(load, coef, substeps, starts, u0, v0, out):
     p0 + (p1 - p0)·m/s to p0 + (p1 - p0)·(m + 1)/s. Oscillators of a chunk
     are interleaved so the loop over them vectorises; all per-oscillator
     values live in one work array whose row stride the compiler knows, so
-    it can prove the rows do not overlap. Chunks run in parallel threads.
+    it can prove the rows do not overlap. Each visit of that loop takes
+    `VISIT` sub-steps with the state held in registers (the loads of those
+    sub-steps queued first, whatever the sub-step count), so sub-stepped and
+    plain chunks run the same loop. Chunks run in parallel threads.
     """
-    n_steps = load.shape[0] - 1
-    n_chunks = starts.shape[0] - 1
-    for chunk in prange(n_chunks):
-        lo = starts[chunk]
-        m = starts[chunk + 1] - lo
-        s = substeps[lo]
-        w = np.zeros((_ROWS, CHUNK))
-        for j in range(m):
-            for r in range(N_COEFFICIENTS):
-                w[_A0 + r, j] = coef[r, lo + j]
-            w[_U, j] = u0[lo + j]
-            w[_V, j] = v0[lo + j]
-            w[_PU, j] = abs(u0[lo + j])
-            w[_PV, j] = abs(v0[lo + j])
-            w[_PA, j] = abs(w[_A0 + 8, j] * v0[lo + j] + w[_A0 + 9, j] * u0[lo + j])
-        a = w[_A0:, :]
-        for i in range(n_steps):
-            p0 = load[i]
-            dp = (load[i + 1] - p0) / s
-            for sub in range(s):
-                pa = p0 + dp * sub
-                pb = p0 + dp * (sub + 1)
-                for j in range(m):
-                    u1, v1 = _advance(a, j, w[_U, j], w[_V, j], pa, pb)
-                    w[_U, j] = u1
-                    w[_V, j] = v1
-                    w[_PU, j] = max(w[_PU, j], abs(u1))
-                    w[_PV, j] = max(w[_PV, j], abs(v1))
-                    w[_PA, j] = max(w[_PA, j], abs(a[8, j] * v1 + a[9, j] * u1))
-        for j in range(m):
-            out[0, lo + j] = w[_PU, j]
-            out[1, lo + j] = w[_PV, j]
-            out[2, lo + j] = w[_PA, j]
+    for chunk in prange(starts.shape[0] - 1):
+        _chunk(load, coef, substeps, starts, u0, v0, out, chunk)
+
+
+@njit(cache=True, fastmath=True)
+def peaks_serial(load, coef, substeps, starts, u0, v0, out):
+    """`peaks` on the calling thread only (small work: see `SERIAL_WORK`)."""
+    for chunk in range(starts.shape[0] - 1):
+        _chunk(load, coef, substeps, starts, u0, v0, out, chunk)
+
+
+def spectrum_peaks(load, coef, substeps, starts, u0, v0, out):
+    """`peaks`, or `peaks_serial` when the work is below `SERIAL_WORK` oscillator-sub-steps."""
+    work = (load.shape[0] - 1) * int(substeps.sum())
+    kernel = peaks_serial if work < SERIAL_WORK else peaks
+    kernel(load, coef, substeps, starts, u0, v0, out)
 
 
 @njit(cache=True)

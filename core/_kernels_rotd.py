@@ -32,8 +32,8 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from numba import njit, prange
 
+from ._jit import njit, prange
 from ._kernels import CHUNK, _advance
 
 #: Fixed directions of the inner polygon, spread over [0°, 180°): eight gives

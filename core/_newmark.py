@@ -25,7 +25,7 @@ Journal of the Engineering Mechanics Division, ASCE, 85(EM3), 67-94.
 
 from __future__ import annotations
 
-from numba import njit
+from ._jit import njit
 
 
 @njit(cache=True, inline="always")

@@ -100,14 +100,14 @@ def parse(text: str, label: str, time_column: bool | None, words: Words) -> Pars
             for item in items:
                 if "." in item or item.count(",") > 1:
                     raise ValueError(
-                        f"{label}: line {number} field {item!r} cannot be read with ',' as the decimal mark "
+                        f"{label}: line {number} field {item[:60]!r} cannot be read with ',' as the decimal mark "
                         "(the file uses decimal commas elsewhere): use one decimal mark in the whole file"
                     )
             items = tuple(item.replace(",", ".") for item in items)
         values = tuple(float(item) for item in items)
         for item, value in zip(items, values):
             if not math.isfinite(value):
-                raise ValueError(f"{label}: line {number} holds a non-finite value {item!r}")
+                raise ValueError(f"{label}: line {number} holds a non-finite value {item[:60]!r}")
         rows.append(values)
         fields.append(items)
     line_numbers = tuple(number for number, _ in data)
@@ -194,7 +194,7 @@ def _decimal_mark(data: list[tuple[int, str]], label: str) -> tuple[bool, re.Pat
         for item in _BLANK.split(line):
             if not _DECIMAL_COMMA.fullmatch(item):
                 raise ValueError(
-                    f"{label}: line {number} field {item!r} is ambiguous: with no '.' in the file, ',' may be "
+                    f"{label}: line {number} field {item[:60]!r} is ambiguous: with no '.' in the file, ',' may be "
                     "a decimal mark or a separator. Separate values by ';', tabs or blanks and use one "
                     "decimal mark, or write decimal points"
                 )

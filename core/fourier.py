@@ -9,7 +9,6 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.fft
 from numpy.typing import NDArray
 
 from .checks import check_positive
@@ -138,6 +137,8 @@ def fourier_amplitude(record: Record, smoothing: str | None = None, *, bandwidth
     if smoothing is not None and smoothing.strip().lower() != KONNO_OHMACHI:
         raise ValueError(f"`smoothing` must be None or {KONNO_OHMACHI!r}, got {smoothing!r}")
     n, dt = record.n, record.dt
+    import scipy.fft  # imported when first used
+
     frequencies = scipy.fft.rfftfreq(n, dt)
     amplitudes = np.abs(scipy.fft.rfft(record.accel)) * dt
     if smoothing is None:

@@ -199,16 +199,24 @@ def substep_counts(
     limit = min(math.inf if max_step_ratio is None else max_step_ratio, method.stability_limit)
     if math.isinf(limit):
         return counts
-    moving = periods > 0.0
     # 1e-12 keeps a ratio that is exactly at the limit from rounding up to one more step
+    if periods.size == 1 and float(periods.flat[0]) > 0.0:  # one oscillator: the same rule on floats
+        one = math.ceil(dt / (limit * float(periods.flat[0])) * (1.0 - 1e-12))
+        if one <= MAX_SUBSTEPS:
+            counts.flat[0] = max(one, 1)
+            return counts
+    moving = periods > 0.0
     needed = np.ceil(dt / (limit * periods[moving]) * (1.0 - 1e-12))
     if needed.size and needed.max() > MAX_SUBSTEPS:
         index = int(np.flatnonzero(moving)[np.argmax(needed)])
-        raise ValueError(
+        from .budget import LimitError  # budget builds on numpy only; imported here to keep methods first
+
+        rigid = "an oscillator this stiff moves with the ground: use period 0 (rigid, PSA = PGA)"
+        raise LimitError(
             f"period {float(periods.flat[index]):g} s would need {needed.max():.3g} sub-steps "
-            f"of the {dt:g} s record step to keep Δt/T <= {limit:.4g}; more than {MAX_SUBSTEPS}. "
-            "An oscillator this stiff moves with the ground: use period 0 (rigid, PSA = PGA)"
-            + ("" if method.stability_limit < math.inf else " or a larger `max_step_ratio`")
+            f"of the {dt:g} s record step to keep Δt/T <= {limit:.4g}; more than {MAX_SUBSTEPS}",
+            rigid + ("" if method.stability_limit < math.inf else " or a larger `max_step_ratio`"),
+            rigid,
         )
     counts[moving] = np.maximum(needed, 1).astype(np.int64)
     return counts

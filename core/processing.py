@@ -13,8 +13,6 @@ import math
 from collections.abc import Callable, Iterable
 
 import numpy as np
-import scipy
-import scipy.signal
 from numpy.polynomial import legendre
 from numpy.typing import NDArray
 
@@ -228,6 +226,9 @@ def bandpass(
     pad_corner = low if low is not None else high
     assert pad_corner is not None
     n_pad = math.ceil(PAD_FACTOR * poles / (pad_corner * record.dt) * (1.0 - 1e-12))
+    import scipy
+    import scipy.signal  # imported when first used: a process that never filters never loads it
+
     tapered = record.accel * scipy.signal.windows.tukey(record.n, fraction)
     padded = np.concatenate((np.zeros(n_pad), tapered, np.zeros(n_pad)))
     sos = scipy.signal.butter(poles, corners, btype=kind, output="sos", fs=1.0 / record.dt)
@@ -313,7 +314,7 @@ def replay_history(record: Record, history: Iterable[ProcessingStep]) -> Record:
 
 
 _OPERATIONS: dict[str, tuple[Callable[..., Record], Callable[[], str]]] = {
-    "bandpass": (bandpass, lambda: f"scipy {scipy.__version__}"),
+    "bandpass": (bandpass, lambda: f"scipy {_scipy_version()}"),
     "baseline_correct": (baseline_correct, lambda: f"numpy {np.__version__}"),
 }
 
@@ -360,3 +361,9 @@ def _new_record(record: Record, samples: NDArray[np.float64], step: ProcessingSt
         history=record.history + (step,),
         accel_is_si=True,
     )
+
+
+def _scipy_version() -> str:
+    import scipy
+
+    return str(scipy.__version__)

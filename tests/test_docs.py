@@ -20,7 +20,7 @@ CORE_MODULES = sorted(
 #: Public modules whose names are plain tables or result classes without an Examples section.
 _NO_EXAMPLES = {"groundstep.core.defaults", "groundstep.core.results", "groundstep.core.inelastic_results"}
 #: The adapter subpackages in import order: each may import only those after it (and core's public modules).
-ADAPTER_LAYERS = ("cli", "calc", "live", "functions", "package", "result", "worksheet", "common")
+ADAPTER_LAYERS = ("cli", "survey", "calc", "live", "functions", "package", "result", "worksheet", "common")
 
 
 def _readme_block(marker: str) -> str:
@@ -123,3 +123,11 @@ def test_adapter_layers_import_one_way():
             if target in rank and target != layer and rank[target] < rank[layer]:
                 wrong.append(f"{'/'.join(relative)} imports {name}")
     assert wrong == []
+
+
+def test_core_public_names_are_one_list():
+    """groundstep.core's __all__ is alphabetical and names exactly what its lazy loader knows."""
+    core = importlib.import_module("groundstep.core")
+    assert core.__all__ == sorted(core.__all__)
+    assert set(core.__all__) == set(core._SOURCES) | {"__version__"}
+    assert all(getattr(core, name) is not None for name in core.__all__)

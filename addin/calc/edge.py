@@ -82,6 +82,17 @@ ARGUMENT_RULES: dict[str, str] = {
     "hardening": "zero_default",
     "period": "ambiguous",
     "damping": "ambiguous",
+    # record processing and measures (STEP_PROCESS, STEP_MEASURES, STEP_FOURIER)
+    "measure": "text",
+    "smoothing": "text",
+    "keep_pads": "flag",
+    "bracket_threshold": "positive",
+    "baseline_order": "positive",  # orders start at 1; blank means no baseline correction
+    "low_hz": "positive",  # blank: no high-pass corner
+    "high_hz": "positive",  # blank: no low-pass corner
+    "filter_order": "positive",
+    "bandwidth": "positive",
+    "taper": "ambiguous",  # 0 (no taper) is valid and differs from the default 0.05
 }
 
 _WORD = re.compile(r"[A-Z][a-z0-9]*")

@@ -1,13 +1,14 @@
 """The ``groundstep`` command line: the parser and the dispatch to one module per command.
 
-Commands: ``demo``, ``fill``, ``spectrum``, ``verify``, ``templates``,
-``calc-extension``, ``warm``. Exit codes (also in ``groundstep --help``):
+Commands: ``batch``, ``demo``, ``fill``, ``spectrum``, ``verify``,
+``templates``, ``calc-extension``, ``warm``. Exit codes (also in
+``groundstep --help``):
 
 0  success (``verify``: every block matches)
 1  ``verify``: at least one block does not match
 2  bad command line or input: a file that cannot be read (for ``verify``:
    not readable as a groundstep result workbook), a bad cell or option, or
-   an output that exists without ``--force``
+   an output that exists without ``--force`` (``batch``: any record failed)
 3  internal error (a bug): rerun with ``--debug`` for the traceback
 """
 
@@ -22,18 +23,25 @@ from types import ModuleType
 
 from groundstep.addin.common import CAUTION
 
-from . import calc_extension, demo, fill, spectrum, templates, verify, warm
+from . import batch, calc_extension, demo, fill, spectrum, templates, verify, warm
 from .common import EXIT_INPUT, EXIT_INTERNAL
 
 __all__ = ["main"]
 
 _EPILOG = f"""exit codes: 0 success; 1 verify found a mismatch; 2 bad command line or input
-(for verify: not a groundstep result workbook); 3 internal error (rerun with --debug).
+(for verify: not a groundstep result workbook; for batch: a record failed); 3 internal error (rerun with --debug).
 
 {CAUTION}"""
 
 #: name -> (module with add() and run(), one-line help, description)
 _COMMANDS: dict[str, tuple[ModuleType, str, str]] = {
+    "batch": (
+        batch, "spectra and measures of a whole record database (local processes or Dask), resumable",
+        "Run every record of a CSV manifest or a folder: elastic spectra, constant-ductility spectra and "
+        "ground-motion measures, one JSON per record in DIR/records, the results manifest DIR/results.csv "
+        "(status, message, hash, seconds) and the combined table DIR/spectra.csv. Re-running skips records "
+        "done with the same settings. Exit 0 when every record is done, 2 when any failed.",
+    ),
     "demo": (
         demo, "write the result workbook of the bundled, invented demo record",
         "Generate the invented demo record (seeded synthetic accelerogram) and write its result workbook.",

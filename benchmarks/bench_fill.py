@@ -1,0 +1,99 @@
+"""Benchmark of ``groundstep fill`` on a long record: wall time, file size, and their parts.
+
+Run: ``python benchmarks/bench_fill.py``. Workload: an input workbook holding
+an invented 40,000-sample record (dt = 0.005 s, seeded noise), 200 periods x
+3 dampings, the default oscillators. Every figure is the best of several runs
+measured in this run; the machine is shared, so compare the ratios printed
+here (time to build the report versus time to write it, both in this run)
+rather than figures from different runs.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import io
+import tempfile
+import time
+from pathlib import Path
+
+import numpy as np
+from openpyxl import Workbook
+
+from groundstep.addin.cli import main
+from groundstep.addin.cli.common import settings_from_options
+from groundstep.addin.package.inputs import read_input_workbook
+from groundstep.addin.result.content import build_report
+from groundstep.addin.result.offline import write_report
+
+SAMPLES = 40_000
+DT = 0.005  # s
+REPEATS = 3
+#: Targets of issue 14.
+TARGET_SECONDS = 2.0
+TARGET_BYTES = 1.5e6
+
+
+def input_workbook(path: Path) -> str:
+    """An input workbook with the record in column B; returns its SHEET!RANGE."""
+    rng = np.random.default_rng(14)
+    t = np.arange(SAMPLES) * DT
+    envelope = np.minimum(t / 4.0, 1.0) * np.exp(-np.maximum(t - 80.0, 0.0) / 40.0)
+    accel = 0.2 * envelope * np.convolve(rng.standard_normal(SAMPLES + 4), np.ones(5) / 5, mode="valid")
+    book = Workbook()
+    ws = book.active
+    ws.title = "Ground motion"
+    ws.append(["time [s]", "accel [g]"])
+    for i, value in enumerate(accel.tolist()):
+        ws.append([i * DT, value])
+    book.save(path)
+    return f"'Ground motion'!B1:B{SAMPLES + 1}"
+
+
+def best(call, repeats: int = REPEATS) -> float:
+    times = []
+    for _ in range(repeats):
+        start = time.perf_counter()
+        call()
+        times.append(time.perf_counter() - start)
+    return min(times)
+
+
+def main_bench() -> None:
+    folder = Path(tempfile.mkdtemp(prefix="gs-fill-"))
+    source = folder / "input.xlsx"
+    reference = input_workbook(source)
+    out = folder / "out.xlsx"
+    argv = ["fill", str(source), "--out", str(out), "--record", reference, "--dt", str(DT), "--unit", "g",
+            "--periods", "0.02,10,200", "--dampings", "0.02,0.05,0.1", "--force"]
+
+    def fill() -> None:
+        with contextlib.redirect_stdout(io.StringIO()):
+            if main(argv) != 0:
+                raise RuntimeError("fill failed")
+
+    fill()  # load kernels
+    whole = best(fill)
+    size = out.stat().st_size
+
+    from groundstep.addin.cli.main import _parser  # the same settings as the command line
+
+    args = _parser().parse_args(argv)
+    record, settings, label = read_input_workbook(source, record=reference, dt=DT, unit="g")
+    settings = settings_from_options(args, settings)
+    read = best(lambda: read_input_workbook(source, record=reference, dt=DT, unit="g"))
+    report = build_report(record, settings, command="bench", source=label)
+    build = best(lambda: build_report(record, settings, command="bench", source=label))
+    write = best(lambda: write_report(report, folder / "w.xlsx", force=True))
+    print(f"groundstep fill: {SAMPLES} samples, 200 periods x 3 dampings (best of {REPEATS})")
+    print(f"  whole command    {whole:7.3f} s   (target {TARGET_SECONDS} s: ratio {whole / TARGET_SECONDS:4.2f})")
+    print(f"    read input     {read:7.3f} s   share {read / whole:5.1%}")
+    print(f"    build report   {build:7.3f} s   share {build / whole:5.1%}")
+    print(f"    write workbook {write:7.3f} s   share {write / whole:5.1%}")
+    print(f"  file size        {size / 1e6:7.3f} MB  (target {TARGET_BYTES / 1e6} MB: ratio {size / TARGET_BYTES:4.2f})")
+    for item in folder.iterdir():
+        item.unlink()
+    folder.rmdir()
+
+
+if __name__ == "__main__":
+    main_bench()
