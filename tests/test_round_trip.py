@@ -145,3 +145,27 @@ def test_empty_dt_cell_is_called_empty(tmp_path, capsys):
     assert main(["fill", str(source), "--out", str(tmp_path / "out.xlsx")]) == 2
     err = capsys.readouterr().err
     assert "the time-step cell (input_dt) is empty" in err and "no named" not in err
+
+
+def test_yielding_sheet_of_the_template_is_filled_and_verified(tmp_path):
+    """fill writes the template's constant-ductility spectrum (Ductility sheet); verify recomputes and guards it."""
+    from groundstep.core import collect_warnings, ductility_spectrum
+
+    record = synthetic_record(5.0, 0.01, pga=0.3, seed=9)
+    source = _package(tmp_path, record)
+    out = tmp_path / "out.xlsx"
+    assert main(["fill", str(source), "--out", str(out), "--periods", "0.1,2,4"]) == 0
+    book = openpyxl.load_workbook(out)
+    assert "Ductility" in book.sheetnames
+    template = build_calculation_package()
+    periods = [c.value for c in template["Yielding"]["A"][6:26]]
+    targets = [c.value for c in template["Yielding"][5][1:5]]
+    with collect_warnings():  # independent route: the core API with the template's inputs
+        expected = ductility_spectrum(record, periods, targets, 0.05, "average")
+    sheet, reference = book.defined_names["gs_ductility_table_cy_1"].attr_text.split("!")
+    stored = [row[0].value for row in book[sheet.strip("'")][reference.replace("$", "")]]
+    np.testing.assert_allclose(stored, expected.yield_coefficient[1], rtol=1e-12)  # the same search, same record
+    assert [c.line() for c in verify_workbook(out) if not c.ok] == []
+    book["Ductility"][reference.replace("$", "").split(":")[0]].value = stored[0] * 1.01
+    book.save(tmp_path / "edited.xlsx")
+    assert [c.block for c in verify_workbook(tmp_path / "edited.xlsx") if not c.ok] == ["ductility_table"]

@@ -149,7 +149,18 @@ def settings_from_cells(
         cell = get(key)
         if cell is not None:
             project.append((key, _cells.text(_as_text(cell), f"the {key} cell", "")))
+    ductility_cells, yield_period_cells = get("ductilities"), get("yield_periods")
+    yield_damping_cell = get("yield_damping")
+    ductility_inputs = {
+        "ductilities": tuple(float(d) for d in _cells.ductilities(ductility_cells, "the target ductilities"))
+        if ductility_cells is not None and not _blank_range(ductility_cells) else base.ductilities,
+        "yield_periods": tuple(float(p) for p in _cells.periods(yield_period_cells, "the Yielding periods"))
+        if yield_period_cells is not None and not _blank_range(yield_period_cells) else base.yield_periods,
+        "yield_damping": float(_cells.dampings(yield_damping_cell, "the Yielding damping cell")[0])
+        if yield_damping_cell is not None and not _blank(yield_damping_cell) else base.yield_damping,
+    }  # fmt: skip
     settings = ReportSettings(
+        **ductility_inputs,
         # T = 0 (rigid: PSA = PGA) stays in the spectrum table; the charts leave it out
         periods=tuple(float(p) for p in _cells.periods(periods, "the period range"))
         if periods is not None
@@ -384,3 +395,9 @@ def _as_text(cell: Any) -> Any:
     if isinstance(inner, datetime.date):
         return inner.isoformat()
     return cell
+
+
+def _blank_range(cells: Any) -> bool:
+    """True when every cell of a range is empty."""
+    flat = cells if not isinstance(cells, (list, tuple)) else [c for row in cells for c in (row if isinstance(row, (list, tuple)) else [row])]
+    return all(_blank(c) for c in (flat if isinstance(flat, list) else [flat]))

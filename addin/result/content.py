@@ -28,6 +28,7 @@ from groundstep.core import (
     bandpass,
     baseline_correct,
     collect_warnings,
+    ductility_spectrum,
     elastic_spectrum,
     fourier_amplitude,
     ground_motion_measures,
@@ -122,6 +123,10 @@ class ReportSettings:
         (``groundstep.core.bandpass``, its defaults otherwise: order 4,
         5 % taper, pads kept); both None: no filter, one None: a high- or
         low-pass.
+    ductilities, yield_periods, yield_damping : tuple, tuple, float
+        The constant-ductility spectrum of the Ductility sheet (the
+        template's Yielding sheet): target ductilities (>= 1), periods [s]
+        and damping ratio; no sheet when either tuple is empty.
     """
 
     periods: tuple[float, ...] = field(default_factory=_default_periods)
@@ -136,6 +141,9 @@ class ReportSettings:
     baseline_order: int | None = None
     low_hz: float | None = None
     high_hz: float | None = None
+    ductilities: tuple[float, ...] = ()
+    yield_periods: tuple[float, ...] = ()
+    yield_damping: float = DEFAULT_DAMPING
 
 
 @dataclass(frozen=True, slots=True)
@@ -202,6 +210,7 @@ def build_report(
             for o in settings.oscillators
         ]
         yielding_oscillators, yielding = _yielding_responses(record, settings, method)
+        ductility = _ductility_spectrum(record, settings, method)
         # measures warn of an all-zero record or a cut mean-period band; the values say so (NaN, 0)
         measures = ground_motion_measures(record)
         raw_measures = ground_motion_measures(raw) if steps else None
@@ -215,6 +224,8 @@ def build_report(
         n_frequencies=len(fourier["fourier_table"]["frequency"]),
         n_chart_frequencies=len(fourier["fourier_chart_table"]["frequency"]), n_steps=len(steps),
         n_findings=len(findings["check"]),
+        ductilities=tuple(float(d) for d in ductility.ductilities) if ductility is not None else (),
+        n_ductility_periods=ductility.periods.size if ductility is not None else 0,
         n_rigid=int(np.argmax(spectrum.periods > 0.0)) if spectrum.periods.max() > 0.0 else spectrum.periods.size,
     )  # fmt: skip
     table = spectrum_table(spectrum, out)
@@ -244,6 +255,8 @@ def build_report(
     if raw_measures is not None:
         content["raw_table"] = _record_columns(raw, out, 0.0)
         content["raw_measures"] = _measures_block(raw_measures, "raw_measure_", out, 0.0)
+    if ductility is not None:
+        content.update(_ductility_blocks(ductility, settings, method))
     if yielding:
         content["yielding_summary"] = _yielding_summary(yielding_oscillators, yielding, out)
     return Report(layout, content, _headline(record, spectrum, out, content, verification))
@@ -557,6 +570,31 @@ def _reduction_factor(oscillator: Oscillator) -> float | None:
     if oscillator.reduction_factor is None:
         return None
     return check_positive(oscillator.reduction_factor, f"oscillator {oscillator.label!r}: reduction factor R")
+
+
+def _ductility_spectrum(record: Record, settings: ReportSettings, method: Method):
+    """The Ductility sheet's constant-ductility spectrum, or None when no targets or periods are given."""
+    if not settings.ductilities or not settings.yield_periods:
+        return None
+    return ductility_spectrum(
+        record, settings.yield_periods, settings.ductilities, settings.yield_damping, yielding_method(method),
+        hardening=settings.hardening, max_step_ratio=yielding_step_ratio(settings.max_step_ratio),
+    )  # fmt: skip
+
+
+def _ductility_blocks(spectrum, settings: ReportSettings, method: Method) -> dict[str, dict[str, Any]]:
+    table: dict[str, Any] = {"period": spectrum.periods.tolist()}
+    for i in range(spectrum.ductilities.size):
+        table[f"cy_{i}"] = spectrum.yield_coefficient[i].tolist()
+        table[f"r_{i}"] = spectrum.reduction_factor[i].tolist()
+    return {
+        "ductility_settings": {
+            "ductilities": ", ".join(repr(float(d)) for d in spectrum.ductilities),
+            "yield_damping": float(spectrum.damping),
+            "ductility_method": _yielding_text(settings.hardening, method),
+        },
+        "ductility_table": table,
+    }
 
 
 def yielding_step_ratio(ratio: float | None) -> float | None:

@@ -29,6 +29,7 @@ from .layout import (
 
 __all__ = [
     "AUDIT",
+    "DUCTILITY",
     "EXACT_TOLERANCE",
     "CHART_POINTS",
     "MEASURES",
@@ -88,6 +89,8 @@ MEASURE_FIELDS: tuple[tuple[str, str, str, str, str], ...] = (
     ("predominant_period", "Predominant period Tp", "time", FIXED4,
      "period of the largest 5 %-damped PSA among 160 periods, 0.02-5 s"),
 )  # fmt: skip
+#: The sheet of the constant-ductility spectrum (present when targets and periods are given).
+DUCTILITY = "Ductility"
 #: First data row of the Record table; the Verification steps start on the same row.
 RECORD_FIRST_ROW = 9
 #: Title of the Peaks sheet's table of yielding oscillators.
@@ -121,6 +124,8 @@ def result_layout(
     n_steps: int = 0,
     n_findings: int = 1,
     n_rigid: int = 0,
+    ductilities: tuple[float, ...] = (),
+    n_ductility_periods: int = 0,
 ) -> WorkbookLayout:
     """The result workbook's layout for the given sizes and units.
 
@@ -146,6 +151,9 @@ def result_layout(
         frequencies) and of its chart table (at most `CHART_POINTS`).
     n_steps : int, default 0
         Processing steps listed on the Audit sheet.
+    ductilities, n_ductility_periods : tuple of float, int
+        Targets and periods of the Ductility sheet's constant-ductility
+        spectrum; the sheet is left out when either is empty.
     n_rigid : int, default 0
         Leading spectrum periods equal to 0 (rigid: PSA = PGA): kept in the
         table, left out of the charts (a logarithmic axis cannot show 0).
@@ -160,6 +168,7 @@ def result_layout(
             _record(n_samples, unit, length_unit, velocity_unit, n_raw),
             _spectra(n_periods, dampings, unit, length_unit, velocity_unit, n_rigid),
             _peaks(n_oscillators, unit, length_unit, velocity_unit, n_yielding),
+            *((_ductility(ductilities, n_ductility_periods),) if ductilities and n_ductility_periods else ()),
             _measures(n_samples, unit, length_unit, velocity_unit, n_raw > 0, n_frequencies, n_chart_frequencies),
             _verification(n_samples),
             _audit(n_steps),
@@ -376,6 +385,28 @@ def _spectra(n_periods, dampings, unit, length_unit, velocity_unit, n_rigid=0) -
         )
     )  # fmt: skip
     return Sheet(SPECTRA, "Elastic response spectra", (table,), charts)
+
+
+def _ductility(ductilities, n_periods) -> Sheet:
+    settings = Fields(
+        "ductility_settings", "Constant-ductility spectrum (the template's Yielding sheet)", 3, 1,
+        (
+            Field("ductilities", "Target ductilities μ", "", TEXT),
+            Field("yield_damping", "Damping ratio ζ", "", FIXED4),
+            Field("ductility_method", "Hysteresis and method", "", TEXT),
+        ),
+    )  # fmt: skip
+    columns = [Column("period", "Period", "s", FIXED4, 10.0)]
+    for index, target in enumerate(ductilities):
+        columns += [
+            Column(f"cy_{index}", f"Yield coefficient Cy, μ = {target:g}", "-", SCIENTIFIC, 16.0),
+            Column(f"r_{index}", f"Reduction factor R, μ = {target:g}", "-", SCIENTIFIC, 16.0),
+        ]
+    table = Table(
+        "ductility_table", "Largest strength reaching each target ductility (Cy = fy / (m·g), R = F_el / fy)",
+        8, 1, tuple(columns), n_periods, checked=True,
+    )  # fmt: skip
+    return Sheet(DUCTILITY, "Constant-ductility spectrum", (settings, table))
 
 
 def _peaks(n_oscillators, unit, length_unit, velocity_unit, n_yielding) -> Sheet:

@@ -30,6 +30,7 @@ from typing import Any
 import numpy as np
 
 from groundstep.core import ProcessingStep, Record, collect_warnings, replay_history
+from groundstep.core.defaults import DEFAULT_DAMPING
 
 from . import layout as lay
 from . import sheets
@@ -211,9 +212,24 @@ def _read_inputs(names: _Names) -> tuple[Record, ReportSettings, dict[str, str]]
         verification_damping=names.number("verification_damping"),
         project=tuple((key, names.value(key) or "") for key in PROJECT_KEYS),
         hardening=float(hardening),
+        ductilities=_listed_numbers(names, "ductilities"),
+        yield_periods=tuple(names.numbers("ductility_table_period", required=False)),
+        yield_damping=names.number("yield_damping") if names.value("yield_damping", required=False) is not None
+        else DEFAULT_DAMPING,
     )
     audit = {key: str(names.value(key, required=False) or "") for key in ("record_sha256", "command", "record_source")}
     return record, settings, audit
+
+
+def _listed_numbers(names: _Names, key: str) -> tuple[float, ...]:
+    """Numbers listed in one text cell (``2.0, 4.0``); empty when the workbook lacks the cell."""
+    text = names.value(key, required=False)
+    if text in (None, ""):
+        return ()
+    try:
+        return tuple(float(part) for part in str(text).split(","))
+    except ValueError:
+        raise NotAResultWorkbook(f"cell {lay.NAME_PREFIX}{key} should list numbers, holds {text!r}") from None
 
 
 def _read_steps(names: _Names) -> tuple[ProcessingStep, ...]:
