@@ -151,16 +151,19 @@ def settings_from_cells(
             project.append((key, _cells.text(_as_text(cell), f"the {key} cell", "")))
     ductility_cells, yield_period_cells = get("ductilities"), get("yield_periods")
     yield_damping_cell = get("yield_damping")
-    ductility_inputs = {
-        "ductilities": tuple(float(d) for d in _cells.ductilities(ductility_cells, "the target ductilities"))
-        if ductility_cells is not None and not _blank_range(ductility_cells) else base.ductilities,
-        "yield_periods": tuple(float(p) for p in _cells.periods(yield_period_cells, "the Yielding periods"))
-        if yield_period_cells is not None and not _blank_range(yield_period_cells) else base.yield_periods,
-        "yield_damping": float(_cells.dampings(yield_damping_cell, "the Yielding damping cell")[0])
-        if yield_damping_cell is not None and not _blank(yield_damping_cell) else base.yield_damping,
-    }  # fmt: skip
+    ductilities: tuple[float, ...] = base.ductilities
+    if ductility_cells is not None and not _blank_range(ductility_cells):
+        ductilities = tuple(float(d) for d in _cells.ductilities(ductility_cells, "the target ductilities"))
+    yield_periods: tuple[float, ...] = base.yield_periods
+    if yield_period_cells is not None and not _blank_range(yield_period_cells):
+        yield_periods = tuple(float(p) for p in _cells.periods(yield_period_cells, "the Yielding periods"))
+    yield_damping: float = base.yield_damping
+    if yield_damping_cell is not None and not _blank(yield_damping_cell):
+        yield_damping = float(_cells.dampings(yield_damping_cell, "the Yielding damping cell")[0])
     settings = ReportSettings(
-        **ductility_inputs,
+        ductilities=ductilities,
+        yield_periods=yield_periods,
+        yield_damping=yield_damping,
         # T = 0 (rigid: PSA = PGA) stays in the spectrum table; the charts leave it out
         periods=tuple(float(p) for p in _cells.periods(periods, "the period range"))
         if periods is not None
