@@ -82,7 +82,7 @@ def STEP_ROTD(
     )
     chosen = [_rotd_choice(cell) for cell in _choices(percentile)]
     columns = []
-    for name, value in chosen:
+    for _name, value in chosen:
         values = spectrum.percentile(value) if isinstance(value, float) else getattr(spectrum, value.attribute)
         columns.append(_converted(values, value, out))
     body = np.column_stack(columns)
