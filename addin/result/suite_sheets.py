@@ -23,8 +23,11 @@ SCALING, SUITE_AUDIT = "Scaling", "Audit"
 
 
 def record_sheet_name(index: int) -> str:
-    """Sheet of the record at 0-based `index`: ``Record 01``, ``Record 02``, ... (labels go in the sheet)."""
-    return f"Record {index + 1:02d}"
+    """Sheet of the record at 0-based `index`: ``Record01``, ``Record02``, ... (labels go in the sheet).
+
+    No spaces: the workbook's defined names then need no quoted sheet names.
+    """
+    return f"Record{index + 1:02d}"
 
 
 def suite_layout(n_periods: int, n_chart_periods: int, components: tuple[int, ...], n_problems: int,
