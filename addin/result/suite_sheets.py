@@ -13,7 +13,21 @@ from __future__ import annotations
 
 from groundstep.addin.common import CAUTION
 
-from .layout import FIXED3, FIXED4, GENERAL, INTEGER, SCIENTIFIC, TEXT, Chart, Column, Field, Fields, Sheet, Table, WorkbookLayout
+from .layout import (
+    FIXED3,
+    FIXED4,
+    GENERAL,
+    INTEGER,
+    SCIENTIFIC,
+    TEXT,
+    Chart,
+    Column,
+    Field,
+    Fields,
+    Sheet,
+    Table,
+    WorkbookLayout,
+)
 
 __all__ = ["SCALING", "SUITE_AUDIT", "SUITE_FORMAT_ID", "record_sheet_name", "suite_layout"]
 
@@ -121,7 +135,7 @@ def _record_sheet(index: int, components: int, n_periods: int) -> Sheet:
             Column("used", "spectrum scaled", "g", SCIENTIFIC),
             Column("scaled", "scaled", "g", SCIENTIFIC),
         )
-        series = (("rotd100", "RotD100"), ("rotd50", "RotD50"), ("geometric_mean", "geometric mean"))
+        series: tuple[tuple[str, str], ...] = (("rotd100", "RotD100"), ("rotd50", "RotD50"), ("geometric_mean", "geometric mean"))
     else:
         columns = (
             Column("period", "T", "s", FIXED4),

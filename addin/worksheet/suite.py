@@ -112,7 +112,7 @@ def STEP_SCALE(
     chosen = SCALING_RULE_NAMES[convert.choice(rule, _RULE_CHOICES, "the rule").attribute]
     required = cells.number(fraction, "the fraction", None)
     bounds = _period_range(range_low, range_high, preset, structure_period)
-    options = {"rule": chosen} if required is None else {"rule": chosen, "fraction": required}
+    options: dict[str, Any] = {"rule": chosen} if required is None else {"rule": chosen, "fraction": required}
     result = RESULTS.get_or_compute(
         ("scale", digest([record_spectra, target, periods]), chosen, required, repr(bounds)),
         lambda: scale_suite(grid, spectra.T, wanted, bounds, **options),
