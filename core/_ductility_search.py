@@ -9,6 +9,7 @@ lanes comes from one compiled kernel call per pass.
 
 from __future__ import annotations
 
+import math
 import time
 
 import numpy as np
@@ -170,11 +171,21 @@ def raise_if_failed(info, period, fy, accepted) -> None:
         return
     when = float(info[_kernels.INFO_FAIL_TIME])
     residual = float(info[_kernels.INFO_FAIL_RESIDUAL])
-    raise ConvergenceError(
+    if not (math.isfinite(residual) and math.isfinite(when)):
+        # a ConvergenceError carries a finite residual; a state that left float64 is a bad input
+        raise ValueError(
+            f"the yielding response left the range of float64 numbers (period {period:g} s, yield force "
+            f"{fy:.6g} m/s²); the record, period or strength lies outside any physical range"
+        )
+    fact = (
         f"Newton iterations did not converge at t = {when:.6g} s (period {period:g} s, yield force "
         f"{fy:.6g} m/s²): residual force {residual:.3g} m/s² per unit mass exceeds {accepted:.3g} "
-        f"even with the step split into {MAX_PIECES} pieces; raise `max_iterations`, loosen "
-        "`tolerance` or lower `max_step_ratio`",
-        when,
-        residual,
+        f"even with the step split into {MAX_PIECES} pieces"
     )
+    error = ConvergenceError(
+        fact + "; raise `max_iterations`, loosen `tolerance` or lower `max_step_ratio`", when, residual
+    )
+    # adapters whose users cannot pass those keywords show the fact with their own advice
+    error.fact = fact
+    error.cell_advice = "try a different strength or hardening, or a record with a finer time step"
+    raise error

@@ -9,6 +9,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from . import _kernels_inelastic as _kernels
 from . import _notices, _validate
+from . import budget as _budget
 from ._ductility_search import MAX_PIECES as _MAX_PIECES
 from ._ductility_search import Solver as _Solver
 from ._ductility_search import raise_if_failed as _raise_if_failed
@@ -177,6 +178,10 @@ def inelastic_response(
     coefficient, reduction = check_strength(yield_coefficient, reduction_factor)
 
     substeps = int(substep_counts(record.dt, np.array([period]), resolved, ratio)[0])
+    _budget.check_work(
+        record.n * substeps * (1.0 + _budget.YIELDING_WEIGHT),
+        f"a yielding response of {record.n} samples x {substeps} sub-steps",
+    )
     with _notices.collect_warnings():  # the SubstepWarning is reported once, below
         linear = linear_response(record, period, damping, resolved, max_step_ratio=ratio)
     elastic_force = linear.pseudo_acceleration
@@ -190,6 +195,7 @@ def inelastic_response(
                 "(are all samples zero?); give `yield_coefficient` instead"
             )
         fy = elastic_force / reduction
+    _check_yield_force(fy, elastic_force)
     _warn_substeps(period, record.dt, substeps, resolved, ratio)
 
     omega = 2.0 * math.pi / period
@@ -353,6 +359,12 @@ def _ductility_spectrum(
     )
 
     substeps = substep_counts(record.dt, period_values, resolved, ratio)
+    runs = 1.0 + _budget.YIELDING_WEIGHT * _budget.DUCTILITY_RUNS_PER_TARGET * targets.size
+    _budget.check_work(
+        record.n * float(substeps[period_values > 0.0].sum()) * runs,
+        f"a ductility spectrum of {record.n} samples x {period_values.size} periods x {targets.size} "
+        f"ductilities x {float(substeps.mean()):.3g} sub-steps on average",
+    )
     elastic = _elastic_forces(record, period_values, damping, resolved, ratio)
     if np.any(elastic <= 0.0):
         index = int(np.flatnonzero(elastic <= 0.0)[0])
@@ -402,12 +414,21 @@ def _check_settings(damping, hardening, method, max_step_ratio, tolerance, max_i
     return (
         check_damping(damping, "damping"), check_hardening(hardening, "hardening"),
         check_method(method, "method", yielding=True), _check_ratio(max_step_ratio),
-        _check_tolerance(tolerance), check_integer(max_iterations, "max_iterations", 1),
+        _check_tolerance(tolerance),
+        _budget.check_iterations(check_integer(max_iterations, "max_iterations", 1)),
     )  # fmt: skip
 
 
+def _check_yield_force(fy: float, elastic_force: float) -> None:
+    """Refuse a yield force [m/s²] that underflows to 0 or whose ratio to the elastic force leaves float64."""
+    if not fy > 0.0 or (elastic_force > 0.0 and not math.isfinite(elastic_force / max(fy, 1e-300))):
+        raise _budget.LimitError(
+            f"the yield force per unit mass {fy:.3g} m/s² (elastic force {elastic_force:.3g} m/s²) is not a positive "
+            "float64 the engine can divide by",
+            "give a reduction factor or yield coefficient of physical size (R of 1 to 100 is common practice)",
+            "give a reduction factor or yield coefficient of physical size (R of 1 to 100 is common practice)",
+        )
+
+
 def _check_tolerance(tolerance: object) -> float:
-    value = _validate.positive(tolerance, "tolerance")
-    if value >= 0.01:
-        raise ValueError(f"`tolerance` must be below 0.01 (a fraction of the reference force), got {value!r}")
-    return value
+    return _budget.check_tolerance(_validate.positive(tolerance, "tolerance"))

@@ -33,6 +33,10 @@ class ConvergenceError(RuntimeError):
         super().__init__(message)
         self.time = time
         self.residual = residual
+        #: The message without the advice on keywords, and advice for spreadsheet users
+        #: (see `groundstep.core.budget.LimitError`, which carries the same two).
+        self.fact = message
+        self.cell_advice = ""
 
 
 class ConvergenceWarning(UserWarning):

@@ -13,6 +13,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from . import _notices, _validate
+from . import budget as _budget
 from .units import ACCELERATION_UNITS, normalise_unit
 
 __all__ = ["ProcessingStep", "Record", "RecordTextWarning"]
@@ -107,8 +108,10 @@ class Record:
     def __post_init__(self) -> None:
         unit = normalise_unit(self.unit, ACCELERATION_UNITS)
         samples = _validate.as_vector(self.accel, "accel", min_size=2)
-        dt = _validate.positive(self.dt, "dt")
-        si = samples if self.accel_is_si else samples * ACCELERATION_UNITS[unit]
+        dt = _budget.check_dt(_validate.positive(self.dt, "dt"))
+        factor = 1.0 if self.accel_is_si else ACCELERATION_UNITS[unit]
+        _budget.check_samples(samples, factor)  # before converting: the product stays finite
+        si = samples if self.accel_is_si else samples * factor
         si.flags.writeable = False
         history = tuple(self.history)
         for index, step in enumerate(history):
@@ -281,7 +284,7 @@ class Record:
         if header:
             _notices.warn(
                 RecordTextWarning(
-                    f"{label}: skipped {len(header)} non-numeric header line(s): {header[0]!r}"
+                    f"{label}: skipped {len(header)} non-numeric header line(s): {header[0][:60]!r}"
                     + (" ..." if len(header) > 1 else "")
                 ),
                 stacklevel=2,
@@ -289,13 +292,39 @@ class Record:
         return cls(samples, dt, unit, name=label if name is None else name, header=tuple(header))
 
 
+#: Largest record text read [bytes]: 64 MiB, about 7 million samples, read in a few
+#: hundred MB of memory. A longer record is cut or decimated before reading.
+MAX_TEXT_BYTES = 64 * 2**20
+
+
 def _read_source(source: str | os.PathLike[str]) -> tuple[str, str]:
     if isinstance(source, str) and ("\n" in source or "\r" in source):
+        if len(source) > MAX_TEXT_BYTES:
+            raise ValueError(f"the record text holds {len(source)} characters, more than {MAX_TEXT_BYTES}; cut it")
         return source, "text"
     path = Path(source)
     if not path.is_file():
-        raise ValueError(f"`source` {str(source)!r} is not a file (pass a path, or text holding line breaks)")
-    return path.read_text(encoding="utf-8-sig", errors="replace"), path.name
+        if path.is_dir():
+            raise ValueError(f"`source` {str(source)[:200]!r} is a folder; pass the path of a text file in it")
+        if path.exists():
+            raise ValueError(
+                f"`source` {str(source)[:200]!r} is not a regular file (a named pipe, socket or device); "
+                "copy the record into a file"
+            )
+        raise ValueError(f"`source` {str(source)[:200]!r} is not a file (pass a path, or text holding line breaks)")
+    size = path.stat().st_size
+    if size > MAX_TEXT_BYTES:
+        raise ValueError(
+            f"{path.name}: {size / 2**20:.0f} MiB, more than the {MAX_TEXT_BYTES / 2**20:.0f} MiB a record text "
+            "may hold; cut the record or decimate it before reading"
+        )
+    raw = path.read_bytes()
+    if raw.startswith((b"\xff\xfe", b"\xfe\xff")) or raw[:4096].count(b"\x00") > len(raw[:4096]) // 4:
+        raise ValueError(
+            f"{path.name}: the file looks UTF-16 encoded (byte-order mark or NUL bytes); save it as UTF-8 "
+            "or plain text, or read it with open(path, encoding='utf-16').read() and pass the text"
+        )
+    return raw.decode("utf-8-sig", errors="replace"), path.name
 
 
 def _parse_lines(text: str, label: str) -> tuple[list[str], list[list[float]], list[int]]:
@@ -319,7 +348,7 @@ def _parse_lines(text: str, label: str) -> tuple[list[str], list[list[float]], l
             continue
         for item, value in zip(fields, values):
             if not math.isfinite(value):
-                raise ValueError(f"{label}: line {number} holds a non-finite value {item!r}")
+                raise ValueError(f"{label}: line {number} holds a non-finite value {item[:60]!r}")
         rows.append(values)
         line_numbers.append(number)
     if not rows:

@@ -373,7 +373,7 @@ def test_hardening_and_methods_in_spectrum(record):
         ({"reduction_factor": 2.0, "method": "exact"}, ValueError, "'exact' applies to linear oscillators only"),
         ({"reduction_factor": 2.0, "method": (0.0, 0.5)}, ValueError, "beta must be > 0"),
         ({"reduction_factor": 2.0, "tolerance": 0.0}, ValueError, r"`tolerance` must be > 0"),
-        ({"reduction_factor": 2.0, "tolerance": 0.5}, ValueError, r"`tolerance` must be below 0.01"),
+        ({"reduction_factor": 2.0, "tolerance": 0.5}, ValueError, r"`tolerance` must lie in \[1e-12, 0.01\)"),
         ({"reduction_factor": 2.0, "max_iterations": 0}, ValueError, r"`max_iterations` must be >= 1, got 0"),
         ({"reduction_factor": 2.0, "max_iterations": 2.5}, TypeError, r"`max_iterations` must be an integer"),
         ({"reduction_factor": "4"}, TypeError, r"`reduction_factor` must be a number"),

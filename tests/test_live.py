@@ -155,6 +155,8 @@ def _as_file_keeps(value):
     """openpyxl writes floats with 16 significant digits ("%.16g", openpyxl.compat.strings.safe_string)."""
     if isinstance(value, float):
         return float(f"{value:.16g}")
+    if isinstance(value, str) and value.startswith("'"):  # Excel's quote prefix: stored as text, not shown
+        return value[1:]
     return value
 
 

@@ -19,8 +19,9 @@ import re
 from collections.abc import Sequence
 from typing import Any
 
+from groundstep.addin.common import as_text
 from groundstep.addin.result import layout as lay
-from groundstep.addin.result.render import SeriesRange, column_letter
+from groundstep.addin.result.render import Formula, SeriesRange, column_letter
 
 __all__ = ["CalcWriter", "calc_formula"]
 
@@ -72,7 +73,7 @@ class CalcWriter:
     def write_cells(self, sheet: str, row: int, column: int, values: Sequence[Sequence[Any]], number_format, bold) -> None:
         rows = [list(line) for line in values]
         target = self._sheet(sheet).getCellRangeByPosition(column - 1, row - 1, column + len(rows[0]) - 2, row + len(rows) - 2)
-        if any(isinstance(v, str) and v.startswith("=") for line in rows for v in line):
+        if any(isinstance(v, Formula) for line in rows for v in line):  # only the layout's own formulas
             target.setFormulaArray(tuple(tuple(_formula_text(v) for v in line) for line in rows))
         else:
             target.setDataArray(tuple(tuple(_data(v) for v in line) for line in rows))
@@ -126,7 +127,8 @@ def _formula_text(value: Any) -> str:
     if value is None:
         return ""
     if isinstance(value, str):
-        return calc_formula(value) if value.startswith("=") else value
+        # text beside a formula goes through the formula parser too: quote-prefix it so it stays text
+        return calc_formula(value) if isinstance(value, Formula) else str(as_text(value))
     return repr(float(value)) if not isinstance(value, bool) else ("1" if value else "0")
 
 

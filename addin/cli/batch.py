@@ -22,7 +22,15 @@ from groundstep.addin.survey import (
     scan_folder,
 )
 
-from .common import EXIT_INPUT, EXIT_OK, UsageError, floats, settings_from_options
+from .common import (
+    EXIT_INPUT,
+    EXIT_OK,
+    UsageError,
+    add_processing_options,
+    add_spectrum_options,
+    floats,
+    settings_from_options,
+)
 
 __all__ = ["add", "run"]
 
@@ -55,23 +63,14 @@ def add(parser: argparse.ArgumentParser) -> None:
     g.add_argument("--settings", default=None, metavar="FILE.toml",
                    help="TOML file with any of: periods, dampings, method, max_step_ratio, ductilities, "
                         "ductility_damping, hardening, baseline, bandpass, measures")  # fmt: skip
-    g.add_argument("--periods", metavar="SHORTEST,LONGEST,COUNT", default=None,
-                   help="log-spaced spectrum periods [s] (default 0.02,10,80)")  # fmt: skip
-    g.add_argument("--dampings", metavar="LIST", default=None, help="damping ratios, e.g. 0.02,0.05,0.1 (default)")
-    g.add_argument("--method", default=None, metavar="NAME", help="average (default), linear, exact, or BETA,GAMMA")
-    g.add_argument("--max-step-ratio", type=float, default=None, metavar="RATIO",
-                   help="largest h/T before a step is sub-divided (default 0.1)")  # fmt: skip
+    add_spectrum_options(g)
     g.add_argument("--ductilities", default=None, metavar="LIST",
                    help="target ductilities of constant-ductility spectra, e.g. 2,4 (default: none)")  # fmt: skip
     g.add_argument("--ductility-damping", type=float, default=None, metavar="RATIO",
                    help="damping ratio of the constant-ductility spectra (default 0.05)")  # fmt: skip
     g.add_argument("--hardening", type=float, default=None, metavar="ALPHA",
                    help="post-yield stiffness ratio of the yielding oscillators, in [0, 1) (default 0)")  # fmt: skip
-    g.add_argument("--baseline", type=int, default=None, metavar="ORDER",
-                   help="remove a polynomial velocity trend of degree ORDER (1-10) first (default: none)")  # fmt: skip
-    g.add_argument("--bandpass", default=None, metavar="LOW,HIGH",
-                   help="zero-phase Butterworth band-pass corners [Hz] after the baseline; leave one out for a "
-                        "high- or low-pass, e.g. 0.1, (default: none)")  # fmt: skip
+    add_processing_options(g)
     g.add_argument("--no-measures", action="store_true", help="leave out the ground-motion measures")
 
 

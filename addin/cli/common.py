@@ -20,7 +20,9 @@ __all__ = [
     "EXIT_MISMATCH",
     "EXIT_OK",
     "UsageError",
+    "add_processing_options",
     "add_settings",
+    "add_spectrum_options",
     "floats",
     "print_headline",
     "refuse_existing",
@@ -34,8 +36,8 @@ class UsageError(ValueError):
     """A bad option combination, reported as an input error."""
 
 
-def add_settings(p: argparse.ArgumentParser) -> None:
-    g = p.add_argument_group("spectrum settings")
+def add_spectrum_options(g: argparse._ArgumentGroup) -> None:
+    """--periods, --dampings, --method, --max-step-ratio: the options every computing command shares."""
     g.add_argument("--periods", metavar="SHORTEST,LONGEST,COUNT", default=None,
                    help="log-spaced spectrum periods [s] (default 0.02,10,80)")  # fmt: skip
     g.add_argument("--dampings", metavar="LIST", default=None, help="damping ratios, e.g. 0.02,0.05,0.1 (default)")
@@ -43,11 +45,22 @@ def add_settings(p: argparse.ArgumentParser) -> None:
                    help="average (default), linear, exact, or BETA,GAMMA")  # fmt: skip
     g.add_argument("--max-step-ratio", type=float, default=None, metavar="RATIO",
                    help="largest h/T before a step is sub-divided (default 0.1)")  # fmt: skip
+
+
+def add_processing_options(g: argparse._ArgumentGroup) -> None:
+    """--baseline and --bandpass: record processing before any analysis."""
     g.add_argument("--baseline", type=int, default=None, metavar="ORDER",
                    help="remove the least-squares velocity trend of this degree first (1 to 10; 2 is usual)")  # fmt: skip
     g.add_argument("--bandpass", default=None, metavar="LOW,HIGH",
                    help="then a zero-phase Butterworth filter with corners LOW and HIGH [Hz]; leave one out "
                         "for a high-pass (0.1,) or a low-pass (,25)")  # fmt: skip
+
+
+def add_settings(p: argparse.ArgumentParser) -> None:
+    """The settings options of the workbook and spectrum commands."""
+    g = p.add_argument_group("spectrum settings")
+    add_spectrum_options(g)
+    add_processing_options(g)
     if p.prog.split()[-1] != "spectrum":  # the workbook commands add oscillators
         g.add_argument("--oscillator", action="append", default=None, metavar="LABEL:PERIOD[:DAMPING[:R]]",
                        help="an oscillator for the Peaks sheet (repeatable); with a strength reduction factor R "

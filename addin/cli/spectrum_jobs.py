@@ -16,8 +16,9 @@ from collections.abc import Sequence
 from concurrent.futures import ProcessPoolExecutor, as_completed
 from pathlib import Path
 
-from groundstep.addin.common import CAUTION, write_atomically
+from groundstep.addin.common import CAUTION, as_text, write_atomically
 from groundstep.addin.result.content import ReportSettings
+from groundstep.addin.survey.task import one_numba_thread
 
 __all__ = ["plan_outputs", "run_batch", "spectrum_job"]
 
@@ -96,7 +97,7 @@ def spectrum_job(
         header = ["period [s]"]
         for damping in table["dampings"]:
             header += [f"{q.upper()} zeta={damping:g} [{table['units'][q]}]" for q in ("sd", "psv", "psa", "sa")]
-        writer.writerow(header)
+        writer.writerow([as_text(cell) for cell in header])  # text cells can never start a formula
         for j, period in enumerate(table["periods"]):
             row = [repr(period)]
             for i in range(len(table["dampings"])):
@@ -132,7 +133,7 @@ def run_batch(
                 bar.step(source.name, "failed")
         bar.close()
         return failures
-    with ProcessPoolExecutor(max_workers=min(workers, len(jobs)), initializer=_one_thread) as pool:
+    with ProcessPoolExecutor(max_workers=min(workers, len(jobs)), initializer=one_numba_thread) as pool:
         futures = {
             pool.submit(spectrum_job, source, target, settings, dt, unit, time_column, command): source
             for source, target in jobs
@@ -146,13 +147,6 @@ def run_batch(
                 bar.step(source.name, "failed")
     bar.close()
     return failures
-
-
-def _one_thread() -> None:
-    """Worker start-up: one numba thread per process, so the processes share the cores."""
-    import numba
-
-    numba.set_num_threads(1)
 
 
 def _write_text_atomically(target: Path, text: str) -> None:

@@ -23,6 +23,7 @@ from pathlib import Path
 from typing import Any
 
 from groundstep.addin.result.content import PROJECT_KEYS, Oscillator, ReportSettings
+from groundstep.addin.result.guard import UnsafeWorkbook, check_package
 from groundstep.addin.worksheet import cells as _cells
 from groundstep.core import Record
 from groundstep.core.checks import check_hardening, check_integer
@@ -31,7 +32,14 @@ from groundstep.core.units import ACCELERATION_UNITS
 
 from .names import lookup_names
 
-__all__ = ["InputError", "read_input_workbook", "settings_from_cells", "split_reference"]
+__all__ = [
+    "InputError",
+    "clip_reference",
+    "first_uncalculated_formula",
+    "read_input_workbook",
+    "settings_from_cells",
+    "split_reference",
+]
 
 _REFERENCE = re.compile(r"^(?:'((?:[^']|'')+)'|([^!]+))!(\$?[A-Za-z]{1,3}\$?\d+(?::\$?[A-Za-z]{1,3}\$?\d+)?)$")
 
@@ -192,16 +200,23 @@ def read_input_workbook(
 
     file = Path(path)
     if not file.is_file():
-        raise InputError(f"input workbook {str(file)!r} does not exist")
+        what = "a folder" if file.is_dir() else "not a regular file" if file.exists() else "does not exist"
+        raise InputError(f"input workbook {str(file)!r} {what}" if what == "does not exist"
+                         else f"input workbook {str(file)!r} is {what}; give an .xlsx file")
     try:
-        book = openpyxl.load_workbook(io.BytesIO(file.read_bytes()), data_only=True)
+        check_package(file)
+    except UnsafeWorkbook as exc:
+        raise InputError(str(exc)) from None
+    data = file.read_bytes()  # read once: the file itself is never opened for writing
+    try:
+        book = openpyxl.load_workbook(io.BytesIO(data), data_only=True, keep_vba=False)
     except Exception as exc:  # openpyxl raises several kinds for a file that is not .xlsx
-        raise InputError(f"{str(file)!r} cannot be read as an .xlsx workbook ({type(exc).__name__}: {exc})") from None
+        raise InputError(f"{str(file)!r} cannot be read as an .xlsx workbook ({type(exc).__name__}: {str(exc)[:120]})") from None
 
     def cells(sheet_name: str, reference: str) -> Any:
         if sheet_name not in book.sheetnames:
             raise InputError(f"{file.name}: no sheet {sheet_name!r}; the sheets are {book.sheetnames}")
-        found = book[sheet_name][reference]
+        found = book[sheet_name][clip_reference(reference, book[sheet_name].max_row, book[sheet_name].max_column)]
         if not isinstance(found, tuple):
             return found.value
         if found and not isinstance(found[0], tuple):  # one row or one column given as A1:A1 style
@@ -228,8 +243,45 @@ def read_input_workbook(
         sheet_name, reference = split_reference(record)
         record_values = cells(sheet_name, reference)
         source = f"{file.name} {sheet_name}!{reference}"
-    rec, settings = settings_from_cells(get, record_values=record_values, dt=dt, unit=unit, source=source, base=base)
+    try:
+        rec, settings = settings_from_cells(get, record_values=record_values, dt=dt, unit=unit, source=source, base=base)
+    except (InputError, _cells.CellError) as exc:
+        uncalculated = first_uncalculated_formula(data, book)
+        if uncalculated:
+            raise InputError(
+                f"{file.name}: {uncalculated} holds a formula with no saved value; open the file in a spreadsheet, "
+                f"let it calculate and save it, then run again ({exc})"
+            ) from None
+        raise
     return rec, settings, source
+
+
+def clip_reference(reference: str, max_row: int, max_column: int) -> str:
+    """`reference` (``A2:XFD1048576``) cut to the sheet's used area, so a whole-column range reads only used cells."""
+    from openpyxl.utils.cell import get_column_letter, range_boundaries
+
+    if ":" not in reference:
+        return reference
+    try:
+        low_col, low_row, high_col, high_row = range_boundaries(reference)
+    except ValueError:
+        return reference  # openpyxl names the problem when it reads the range
+    high_row = min(high_row or max_row, max(max_row, low_row))
+    high_col = min(high_col or max_column, max(max_column, low_col))
+    return f"{get_column_letter(low_col)}{low_row}:{get_column_letter(high_col)}{high_row}"
+
+
+def first_uncalculated_formula(data: bytes, values_book: Any) -> str:
+    """``Sheet!B7`` of the first formula cell with no saved value, or "" (a file written by a program, never opened)."""
+    import openpyxl
+
+    formulas = openpyxl.load_workbook(io.BytesIO(data), data_only=False, keep_vba=False)
+    for sheet in formulas.worksheets:
+        for row in sheet.iter_rows():
+            for cell in row:
+                if cell.data_type == "f" and values_book[sheet.title][cell.coordinate].value is None:
+                    return f"{sheet.title}!{cell.coordinate}"
+    return ""
 
 
 def _reduction_factors(factors: Any, periods: Any, count: int) -> list[float | None]:

@@ -14,8 +14,10 @@ from __future__ import annotations
 from collections.abc import Sequence
 from typing import Any
 
+from groundstep.addin.common import as_text
+
 from . import layout as lay
-from .render import SeriesRange
+from .render import Formula, SeriesRange
 
 __all__ = ["XlwingsWriter"]
 
@@ -59,9 +61,9 @@ class XlwingsWriter:
             self.book.sheets.add(name)
 
     def write_cells(self, sheet: str, row: int, column: int, values: Sequence[Sequence[Any]], number_format, bold) -> None:
-        rows = [list(line) for line in values]
+        rows = [[v if isinstance(v, Formula) else as_text(v) for v in line] for line in values]
         target = self._sheet(sheet).range((row, column)).resize(len(rows), len(rows[0]))
-        if any(isinstance(v, str) and v.startswith("=") for line in rows for v in line):
+        if any(isinstance(v, Formula) for line in rows for v in line):
             target.formula = rows
         else:
             target.value = rows

@@ -22,7 +22,7 @@ from groundstep.addin.common import write_atomically
 
 from . import layout as lay
 from .content import Report
-from .render import SeriesRange, column_letter, render
+from .render import Formula, SeriesRange, column_letter, render
 
 __all__ = ["OpenpyxlWriter", "write_report", "write_workbook_atomically"]
 
@@ -48,6 +48,8 @@ class OpenpyxlWriter:
         for i, line in enumerate(values):
             for j, value in enumerate(line):
                 cell = ws.cell(row=row + i, column=column + j, value=value)
+                if isinstance(value, str) and not isinstance(value, Formula):
+                    cell.data_type = "s"  # text stays text whatever its first character
                 if number_format:
                     cell.number_format = number_format
                 if bold:

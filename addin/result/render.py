@@ -8,6 +8,7 @@ dictionary, used by ``verify`` and by tests).
 
 from __future__ import annotations
 
+import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 from types import SimpleNamespace
@@ -15,7 +16,18 @@ from typing import Any, Protocol
 
 from . import layout as lay
 
-__all__ = ["CellRecorder", "SeriesRange", "SheetWriter", "block_cells", "column_letter", "render"]
+__all__ = ["CellRecorder", "Formula", "SeriesRange", "SheetWriter", "block_cells", "column_letter", "render"]
+
+
+class Formula(str):
+    """A formula the layout itself writes (``=MAX(...)``); every other text a writer receives is text.
+
+    Writers write a `Formula` as a formula and any plain ``str`` as text,
+    whatever its first character, so text copied from inputs (titles,
+    labels, sheet and file names) never becomes a formula.
+    """
+
+    __slots__ = ()
 
 
 @dataclass(frozen=True, slots=True)
@@ -42,7 +54,7 @@ class SheetWriter(Protocol):
     def write_cells(
         self, sheet: str, row: int, column: int, values: Sequence[Sequence[Any]], number_format: str | None, bold: bool
     ) -> None:
-        """Write a rectangle of values (rows of cells); a string starting with ``=`` is a formula."""
+        """Write a rectangle of values (rows of cells); a `Formula` is a formula, any other ``str`` is text."""
 
     def define_name(self, name: str, sheet: str, reference: str) -> None:
         """Workbook-level name for ``sheet!reference`` (reference like ``$B$5`` or ``$B$9:$B$20``)."""
@@ -93,7 +105,7 @@ def render_block(sheet: lay.Sheet, block, values: dict[str, Any], writer: SheetW
             row = block.row + offset
             writer.write_cells(name, row, block.column, [[item.label]], None, False)
             if item.key in formulas:
-                value = formulas[item.key].format_map(addresses)
+                value = Formula(formulas[item.key].format_map(addresses))
             else:
                 value = _safe(values.get(item.key))
             writer.write_cells(name, row, block.column + 1, [[value]], item.number_format, False)
@@ -117,7 +129,7 @@ def render_block(sheet: lay.Sheet, block, values: dict[str, Any], writer: SheetW
             cells = []
             for row in range(first, first + block.rows):
                 template = column.first if row == first else column.step
-                cells.append([template.format_map({**addresses, **letters, "r": row, "q": row - 1, "rr": row + offset})])
+                cells.append([Formula(template.format_map({**addresses, **letters, "r": row, "q": row - 1, "rr": row + offset}))])
         else:
             data = values.get(column.key, [])
             if len(data) != block.rows:
@@ -174,12 +186,18 @@ def _column_range(sheet: str, block, key: str) -> SeriesRange:
 
 
 def _safe(value: Any) -> Any:
-    """Empty text becomes a blank cell; text starting with '=' gets a leading space (text, not a formula)."""
+    """Empty text becomes a blank cell; text starting with '=' gets a leading space, so even a reader
+    that takes '=' for a formula sees text; control characters the xlsx format cannot hold become spaces."""
     if value == "":
         return None
-    if isinstance(value, str) and value.startswith("="):
-        return " " + value
+    if isinstance(value, str) and not isinstance(value, Formula):
+        cleaned = _CONTROL.sub(" ", value)
+        return " " + cleaned if cleaned.startswith("=") else cleaned
     return value
+
+
+#: Characters XML 1.0 (so xlsx) cannot hold: C0 controls other than tab, line feed and carriage return.
+_CONTROL = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f]")
 
 
 class CellRecorder:

@@ -24,7 +24,6 @@ from __future__ import annotations
 import ast
 import math
 import os
-import zipfile
 from dataclasses import dataclass, replace
 from typing import Any
 
@@ -35,6 +34,7 @@ from groundstep.core import ProcessingStep, Record, collect_warnings, replay_his
 from . import layout as lay
 from . import sheets
 from .content import PROJECT_KEYS, Oscillator, ReportSettings, build_report
+from .guard import UnsafeWorkbook, check_package
 from .render import CellRecorder, block_cells, column_letter, formula_fields, render_block
 
 __all__ = ["BlockCheck", "NotAResultWorkbook", "RELATIVE_TOLERANCE", "verify_workbook"]
@@ -92,8 +92,12 @@ def verify_workbook(path: str | os.PathLike[str]) -> list[BlockCheck]:
     import openpyxl
 
     try:
-        book = openpyxl.load_workbook(path, data_only=False)
-    except (OSError, zipfile.BadZipFile, KeyError, ValueError) as exc:
+        check_package(path)
+    except UnsafeWorkbook as exc:
+        raise NotAResultWorkbook(str(exc)) from None
+    try:
+        book = openpyxl.load_workbook(path, data_only=False, keep_vba=False)
+    except Exception as exc:  # noqa: BLE001 - openpyxl and the XML parser raise many kinds for a bad package
         raise NotAResultWorkbook(f"{os.fspath(path)!r} cannot be opened as an .xlsx workbook ({exc})") from None
     reader = _Names(book)
     mark = reader.value("format", required=False)

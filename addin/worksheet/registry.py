@@ -15,14 +15,17 @@ from __future__ import annotations
 
 import functools
 import inspect
+import math
 from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Any, NamedTuple
 
+import numpy as np
 import xlwings as xw
 
 from groundstep.addin.common import ERROR_PREFIX
 from groundstep.core import ConvergenceError
+from groundstep.core.budget import DEFAULT_MAX_WORK, LimitError, work_budget
 
 from .cells import CellError
 
@@ -39,6 +42,7 @@ __all__ = [
     "SPECTRUM_QUANTITIES",
     "Argument",
     "Quantity",
+    "WORKSHEET_MAX_WORK",
     "SheetFunction",
     "worksheet_function",
 ]
@@ -276,15 +280,61 @@ def worksheet_function(
 
 
 def _guard(function: Callable[..., Any]) -> Callable[..., Any]:
-    """Return failures as one cell of text starting with ERROR_PREFIX."""
+    """Return failures, and results that are not finite numbers, as one cell of text starting with ERROR_PREFIX.
+
+    The call runs under the worksheet work budget (`WORKSHEET_MAX_WORK`) with
+    numpy's floating-point errors raised rather than warned, so an overflow
+    anywhere becomes a message naming the function instead of a warning
+    printed to the console.
+    """
+    name = function.__name__
 
     @functools.wraps(function)
     def guarded(*args: Any) -> Any:
         try:
-            return function(*args)
-        except (CellError, ValueError, TypeError, ConvergenceError) as exc:
+            with work_budget(WORKSHEET_MAX_WORK), np.errstate(over="raise", divide="raise", invalid="raise", under="ignore"):
+                result = function(*args)
+        except LimitError as exc:
+            return f"{ERROR_PREFIX}{exc.fact}; {exc.cell_advice or _CELL_BUDGET_ADVICE}"
+        except ConvergenceError as exc:
+            return f"{ERROR_PREFIX}{exc.fact}" + (f"; {exc.cell_advice}" if exc.cell_advice else "")
+        except (CellError, ValueError, TypeError) as exc:
             return f"{ERROR_PREFIX}{exc}"
+        except (OverflowError, ZeroDivisionError, FloatingPointError) as exc:
+            return (
+                f"{ERROR_PREFIX}{name}: the arguments lead outside the range of floating-point numbers ({exc}); "
+                "check the units and magnitudes of the cells (time step in seconds, record unit)"
+            )
         except Exception as exc:  # noqa: BLE001 - a cell must never see a traceback
             return f"{ERROR_PREFIX}unexpected {type(exc).__name__}: {exc} (please report this)"
+        return _finite(result, name)
 
     return guarded
+
+
+#: Largest cost one worksheet call may take [oscillator-sub-steps]: a tenth of the
+#: core's default, a few seconds of work, so that one cell never freezes a sheet.
+WORKSHEET_MAX_WORK = DEFAULT_MAX_WORK / 10.0
+
+_CELL_BUDGET_ADVICE = (
+    "a single cell is limited to this; shorten the record range, use fewer periods, "
+    "or run the groundstep command line (fill) for a request this large"
+)
+
+
+def _finite(result: Any, name: str) -> Any:
+    """`result` unchanged when every number in it is finite; else a message naming where."""
+    if isinstance(result, float):
+        if math.isfinite(result):
+            return result
+        return f"{ERROR_PREFIX}{name} gave {result!r}, not a finite number; check the magnitudes of the cells"
+    if isinstance(result, list):
+        for i, line in enumerate(result):
+            for j, value in enumerate(line if isinstance(line, list) else [line]):
+                if isinstance(value, float) and not math.isfinite(value):
+                    where = f"row {i + 1}, column {j + 1}" if isinstance(line, list) else f"entry {i + 1}"
+                    return (
+                        f"{ERROR_PREFIX}{name} gave {value!r} at {where} of its table, not a finite number; "
+                        "check the magnitudes of the cells"
+                    )
+    return result
