@@ -73,7 +73,8 @@ def verify_workbook(path: str | os.PathLike[str]) -> list[BlockCheck]:
     ----------
     path : path-like
         A workbook written by ``groundstep`` (``demo``, ``fill`` or
-        ``spectrum --format xlsx``).
+        ``spectrum --format xlsx``); a suite workbook (``groundstep
+        suite``) is handed to ``suite_verify.verify_suite``.
 
     Returns
     -------
@@ -101,6 +102,12 @@ def verify_workbook(path: str | os.PathLike[str]) -> list[BlockCheck]:
         raise NotAResultWorkbook(f"{os.fspath(path)!r} cannot be opened as an .xlsx workbook ({exc})") from None
     reader = _Names(book)
     mark = reader.value("format", required=False)
+    from .suite_sheets import SUITE_FORMAT_ID  # the suite workbook's own format (groundstep suite)
+
+    if mark == SUITE_FORMAT_ID:
+        from .suite_verify import verify_suite
+
+        return verify_suite(book, path)
     if mark != lay.FORMAT_ID:
         raise NotAResultWorkbook(
             f"{os.fspath(path)!r} is not a groundstep result workbook (no {lay.NAME_PREFIX}format "

@@ -1,7 +1,7 @@
 """The one table of worksheet functions: names, arguments, help texts and the quantities they return.
 
 Every ``STEP_`` function is declared once, with `worksheet_function`, in
-``functions.py`` or ``records.py``. The decorator records it in `FUNCTIONS` (name, summary,
+``functions.py``, ``records.py`` or ``suite.py``. The decorator records it in `FUNCTIONS` (name, summary,
 arguments with their help text, whether it spills) and applies the xlwings
 decorators from that same record, so the help Excel shows, the README table
 and any other spreadsheet binding are generated from one place.
@@ -37,6 +37,8 @@ __all__ = [
     "FUNCTIONS",
     "MEASURE_QUANTITIES",
     "PEAK_QUANTITIES",
+    "ROTD_CHOICES",
+    "SCALING_RULE_NAMES",
     "SPECTRUM_QUANTITIES",
     "Argument",
     "Quantity",
@@ -93,10 +95,32 @@ ARGUMENT_HELP: dict[str, str] = {
     "filter_order": "Order of one pass of the Butterworth filter, even and >= 2 (run forward and back). Blank: 4.",
     "taper": "Fraction of the record inside the cosine taper before filtering, half at each end. Blank: 0.05.",
     "keep_pads": "TRUE (default) keeps the zero pads added before filtering, so the result is longer than the record.",
+    # design spectra, orientation-independent spectra and suite scaling (suite.py)
+    "design_periods": "Periods T [s]: one column or row of cells (>= 0; > 0 for a table target).",
+    "standard": "ASCE7 (ASCE/SEI 7-16 §11.4.6), EN1998 (EN 1998-1:2004 §3.2.2.2) or table (a target of your own).",
+    "parameters": (
+        "Two columns: name and value, e.g. sds 1.0 / sd1 0.6 / tl 8 (ASCE7) or ag 0.25 / ground_type C / "
+        "spectrum_type 1 / importance_factor 1 / damping 0.05 (EN1998); for table: period [s] and Sa [g] rows."
+    ),
+    "design_accel_unit_out": "Unit of the returned spectral accelerations (g, m/s2, cm/s2, ...). Blank: g.",
+    "accel_x": "First horizontal component: one column of cells (same time step and length as the second).",
+    "accel_y": "Second horizontal component, at right angles to the first: one column of cells.",
+    "percentile": "RotD percentile 0-100 (50 default, 100 the maximum direction), or GM (geometric mean); a row spills columns.",
+    "record_spectra": "Spectra of the records: one column per record, one row per period (text headers above are skipped).",
+    "target": "Target spectrum at the same periods and in the same unit: one column.",
+    "rule": "common (default: one factor for the suite), least squares (one per record, log fit) or both.",
+    "range_low": "Shortest period of the range the rule applies over [s]. Blank with a preset: 0.2 T.",
+    "range_high": "Longest period of the range [s]. Blank with a preset: 2.0 T.",
+    "fraction": "Least suite mean / target required over the range, in (0, 1]. Blank: 0.9 (the preset's).",
+    "preset": "Optional: ASCE7 (ASCE/SEI 7-16 §16.2.3.2) or EN1998 (EN 1998-1:2004 §3.2.3.1.2), from memory of the clauses.",
+    "structure_period": "Fundamental period T of the structure [s]; with a preset it sets the range 0.2 T to 2.0 T.",
 }
 
 #: Arguments that take a range of cells (passed as a two-dimensional list, error cells as text).
-RANGE_ARGUMENTS = frozenset({"accel", "periods", "dampings", "ductilities", "measure"})
+RANGE_ARGUMENTS = frozenset(
+    {"accel", "periods", "dampings", "ductilities", "measure", "parameters", "accel_x", "accel_y", "percentile",
+     "record_spectra", "target"}
+)  # fmt: skip
 
 
 class Quantity(NamedTuple):
@@ -145,6 +169,17 @@ DUCTILITY_SPECTRUM_QUANTITIES: dict[str, Quantity] = {
     "peak displacement": Quantity("peak displacement", "peak_displacement", "length"),
     "achieved ductility": Quantity("achieved ductility", "achieved_ductility", "ratio"),
 }
+
+# percentile cell as typed (besides a number 0-100) -> attribute of groundstep.core.RotDSpectrum
+ROTD_CHOICES: dict[str, Quantity] = {
+    "GM": Quantity("geometric mean", "geometric_mean", "acceleration"),
+    "PSA x": Quantity("PSA x", "psa_x", "acceleration"),
+    "PSA y": Quantity("PSA y", "psa_y", "acceleration"),
+    "angle": Quantity("direction of RotD100 [degrees]", "angle_rotd100", "ratio"),
+}
+
+# rule as typed (matched ignoring case, "_" and "-") -> rule of groundstep.core.scale_suite
+SCALING_RULE_NAMES: dict[str, str] = {"common": "common", "least squares": "least_squares", "both": "both"}
 
 # measure as typed -> Quantity; the attribute is the key of groundstep.core.ground_motion_measures,
 # which also matches ("pgv_time" is "PGV time" once "_" and case are ignored)
