@@ -72,7 +72,7 @@ def first_call_seconds(cache_dir: str) -> float:
     code = (
         "import time, warnings, numpy as np;"
         "from groundstep.core import Record, elastic_spectrum;"
-        "r = Record(np.sin(np.arange(2000) * 0.05), 0.01);"
+        "r = Record(np.sin(np.arange(2000) * 0.05), 0.01, 'g');"
         "warnings.simplefilter('ignore');"
         "t = time.perf_counter();"
         "elastic_spectrum(r, [0.005, 0.5, 2.0], [0.05]);"
@@ -86,7 +86,7 @@ def first_call_seconds(cache_dir: str) -> float:
 
 def small_calls(record: Record) -> None:
     """One oscillator end to end, and a small spectrum on one thread against the parallel kernel."""
-    short = Record(record.accel[:2000], dt=record.dt)
+    short = Record(record.accel[:2000], dt=record.dt, unit="m/s2")
     linear_response(short, 1.0)
     repeat = 2000
     seconds = best_of(lambda: [linear_response(short, 1.0) for _ in range(repeat)]) / repeat

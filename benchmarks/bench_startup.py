@@ -25,7 +25,7 @@ FIRST_RESULT = (
     "{prelude}"
     "import numpy as np\n"
     "from groundstep.core import Record, elastic_spectrum\n"
-    "record = Record(np.sin(np.arange(2000) * 0.05), 0.01)\n"
+    "record = Record(np.sin(np.arange(2000) * 0.05), 0.01, 'g')\n"
     "elastic_spectrum(record, [0.5, 1.0, 2.0], [0.05])\n"
     "print(time.perf_counter() - start)\n"
 )

@@ -213,7 +213,7 @@ def elastic_spectrum(
     --------
     >>> import numpy as np
     >>> from groundstep.core import Record, elastic_spectrum, period_grid
-    >>> rec = Record(0.1 * np.sin(np.arange(500) * 0.05), dt=0.01)
+    >>> rec = Record(0.1 * np.sin(np.arange(500) * 0.05), dt=0.01, unit="g")
     >>> spec = elastic_spectrum(rec, period_grid(0.1, 4.0, 50), [0.02, 0.05])  # Δt/T <= 0.1: no sub-steps
     >>> spec.psa.shape
     (2, 50)

@@ -8,6 +8,7 @@ import os
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import cast
 
 import numpy as np
 from numpy.typing import NDArray
@@ -27,6 +28,19 @@ TIME_SPACING_TOLERANCE = _record_text.TIME_SPACING_TOLERANCE
 #: spreadsheet keeps of a number when it saves a file (15, the precision of
 #: Excel and LibreOffice Calc cells).
 DIGEST_SIGNIFICANT_DIGITS = 15
+
+
+class _NoUnit:
+    """The default of `Record.unit`: marks a unit not given, so the refusal can list the units
+    (the bare dataclass message only says an argument is missing)."""
+
+    __slots__ = ()
+
+    def __repr__(self) -> str:
+        return "<required>"
+
+
+_NO_UNIT = _NoUnit()
 
 
 class RecordTextWarning(UserWarning):
@@ -67,9 +81,11 @@ class Record:
         Acceleration samples in `unit`; at least two, all finite.
     dt : float
         Time step [s], > 0.
-    unit : str, default ``"g"``
-        Unit of `accel`: ``"g"`` (9.80665 m/s²), ``"m/s2"``, ``"cm/s2"``
-        (alias ``"gal"``), ``"mm/s2"``, ``"in/s2"`` or ``"ft/s2"``.
+    unit : str
+        Unit of `accel`, required (a wrong unit scales every result, so none
+        is assumed): ``"g"`` (9.80665 m/s²), ``"m/s2"``, ``"cm/s2"`` (alias
+        ``"gal"``), ``"mm/s2"``, ``"in/s2"`` or ``"ft/s2"``. A missing unit is
+        a TypeError naming `unit` and listing these names.
     name : str, optional
         Label for reports.
     header : tuple of str, optional
@@ -102,13 +118,18 @@ class Record:
 
     accel: NDArray[np.float64]
     dt: float
-    unit: str = "g"
+    unit: str = field(default=cast(str, _NO_UNIT))  # required: the default only marks "not given"
     name: str = ""
     header: tuple[str, ...] = field(default=(), repr=False)
     history: tuple[ProcessingStep, ...] = field(default=(), repr=False)
     accel_is_si: bool = field(default=False, repr=False, kw_only=True)
 
     def __post_init__(self) -> None:
+        if self.unit is _NO_UNIT:
+            raise TypeError(
+                f"`unit` is required: Record(accel, dt, unit) with unit one of {', '.join(ACCELERATION_UNITS)}; "
+                "a wrong unit scales every result, so none is assumed"
+            )
         unit = normalise_unit(self.unit, ACCELERATION_UNITS)
         samples = _validate.as_vector(self.accel, "accel", min_size=2)
         dt = _budget.check_dt(_validate.positive(self.dt, "dt"))

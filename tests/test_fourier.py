@@ -93,7 +93,7 @@ def test_long_record_is_smoothed_on_log_spaced_centres():
 
 def test_fourier_refuses_bad_arguments():
     """Non-Record and non-string are TypeErrors; an unknown window or bandwidth <= 0 are ValueErrors."""
-    rec = Record(np.ones(8), 0.01)
+    rec = Record(np.ones(8), 0.01, "m/s2")
     with pytest.raises(TypeError, match="`record` must be a groundstep Record"):
         fourier_amplitude(np.ones(8))
     with pytest.raises(TypeError, match="`smoothing` must be None or 'konno-ohmachi', got int"):

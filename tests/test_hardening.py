@@ -140,12 +140,12 @@ def test_record_refuses_samples_beyond_the_bound():
 def test_record_refuses_time_steps_outside_the_range(dt):
     """dt outside [1e-9, 1e3] s is refused with the range (no ZeroDivisionError or overflow later)."""
     with pytest.raises(ValueError, match=r"`dt` must lie in \[1e-09, 1000\] s"):
-        Record([0.0, 1.0], dt)
+        Record([0.0, 1.0], dt, "m/s2")
 
 
 def test_initial_displacement_beyond_the_bound_is_refused():
     """An initial displacement of 1.7e308 m is refused, not integrated into NaN."""
-    record = Record([0.0, 0.1, 0.0], 0.01)
+    record = Record([0.0, 0.1, 0.0], 0.01, "g")
     with pytest.raises(ValueError, match=r"`initial_displacement` must be within ±1e\+150 m"):
         linear_response(record, 0.5, initial_displacement=1.7e308)
 
@@ -395,7 +395,7 @@ def test_cache_is_bounded_by_bytes():
     ("call", "pattern"),
     [
         (lambda r: elastic_spectrum(r, [0.05], max_step_ratio=5e-324), r"`max_step_ratio` must be >= 1e-09"),
-        (lambda r: inelastic_response(Record([-1.83e-124] * 3, 0.02), 0.05, reduction_factor=1e300),
+        (lambda r: inelastic_response(Record([-1.83e-124] * 3, 0.02, "g"), 0.05, reduction_factor=1e300),
          r"yield force per unit mass .* not a positive"),  # 3.6e-123 m/s² / 1e300 underflows to 0
         (lambda r: linear_response(r, 0.3, 0.02, (1e-300, 0.5)), r"beta must be >= 1e-06"),
     ],

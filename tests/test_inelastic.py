@@ -400,7 +400,7 @@ def test_bad_period_damping_record_and_ductilities(record):
         ductility_spectrum(record, [0.5], [2.0, 0.5])
     with pytest.raises(ValueError, match=r"`hardening` must be a post-yield stiffness ratio in \[0, 1\)"):
         ductility_spectrum(record, [0.5], [2.0], 0.05, hardening=1.5)
-    silent = Record(np.zeros(50), 0.01)
+    silent = Record(np.zeros(50), 0.01, "m/s2")
     with pytest.raises(ValueError, match="no elastic force"):
         inelastic_response(silent, 0.5, reduction_factor=2.0)
     with pytest.raises(ValueError, match="no elastic force at `periods` index 0"):

@@ -45,7 +45,7 @@ def test_normalised_build_up_runs_from_zero_to_one_and_never_falls():
     h = normalised_arias(rec)
     assert h[0] == 0.0 and h[-1] == 1.0
     assert np.all(np.diff(h) >= 0.0)
-    assert np.all(normalised_arias(Record(np.zeros(5), 0.01)) == 0.0)
+    assert np.all(normalised_arias(Record(np.zeros(5), 0.01, "m/s2")) == 0.0)
 
 
 def test_significant_duration_of_steady_shaking():
@@ -210,12 +210,12 @@ def test_measures_refuse_a_non_record_and_a_bad_threshold():
     with pytest.raises(TypeError, match="`record` must be a groundstep Record, got list"):
         ground_motion_measures([0.0, 1.0])
     with pytest.raises(ValueError, match="`bracket_threshold` must be > 0"):
-        ground_motion_measures(Record([0.0, 1.0], 0.01), bracket_threshold=0.0)
+        ground_motion_measures(Record([0.0, 1.0], 0.01, "m/s2"), bracket_threshold=0.0)
 
 
 def test_measures_of_a_record_of_zeros_warn_and_give_nan():
     """All zeros: peaks and durations 0, their times and both periods NaN, with a MeasureWarning."""
     with pytest.warns(MeasureWarning, match="holds only zeros"):
-        m = ground_motion_measures(Record(np.zeros(100), 0.01))
+        m = ground_motion_measures(Record(np.zeros(100), 0.01, "m/s2"))
     assert m["pga"] == m["d5_95"] == m["cav"] == m["spectrum_intensity"] == 0.0
     assert math.isnan(m["mean_period"]) and math.isnan(m["predominant_period"]) and math.isnan(m["d5_95_start"])

@@ -83,7 +83,7 @@ def test_baseline_correction_keeps_the_input_and_records_the_step():
 
 def test_baseline_correction_refuses_bad_orders():
     """Order must be an integer 1-10 and below the sample count, with messages naming `order`."""
-    rec = Record(np.ones(5), 0.01)
+    rec = Record(np.ones(5), 0.01, "m/s2")
     with pytest.raises(ValueError, match="`order` must be >= 1, got 0"):
         baseline_correct(rec, 0)
     with pytest.raises(ValueError, match="`order` must be at most 10"):
@@ -153,7 +153,7 @@ def test_bandpass_pads_and_records_the_step():
 
 def test_bandpass_refuses_bad_corners_and_orders():
     """Corners outside (0, Nyquist) name the Nyquist frequency; both None, crossed corners, odd order are refused."""
-    rec = Record(np.ones(100), 0.01)  # Nyquist 50 Hz
+    rec = Record(np.ones(100), 0.01, "m/s2")  # Nyquist 50 Hz
     with pytest.raises(ValueError, match=r"`high_hz` must lie between 0 and the Nyquist frequency 50 Hz"):
         bandpass(rec, 0.1, 60.0)
     with pytest.raises(ValueError, match=r"`low_hz` must lie between 0 and the Nyquist frequency 50 Hz"):

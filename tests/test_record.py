@@ -47,7 +47,7 @@ def test_attributes_and_time_axis():
 
 def test_record_is_frozen_and_samples_read_only():
     """A Record cannot be changed after construction, nor can its sample array."""
-    record = Record([0.0, 1.0], dt=0.01)
+    record = Record([0.0, 1.0], dt=0.01, unit="g")
     with pytest.raises(AttributeError):
         record.dt = 0.02  # type: ignore[misc]
     with pytest.raises(ValueError, match="read-only"):
@@ -85,21 +85,21 @@ def test_sha256_depends_on_samples_unit_and_dt():
     assert base != Record([0.1, 0.2, 0.3000001], 0.01, "g").sha256()
     assert base != Record([0.1, 0.2, 0.3], 0.02, "g").sha256()
     assert base != Record([0.1, 0.2, 0.3], 0.01, "m/s2").sha256()
-    assert Record([-0.0, 0.2], 0.01).sha256() == Record([0.0, 0.2], 0.01).sha256()
+    assert Record([-0.0, 0.2], 0.01, "g").sha256() == Record([0.0, 0.2], 0.01, "g").sha256()
 
 
 @pytest.mark.parametrize(
     ("kwargs", "error", "message"),
     [
-        ({"accel": [], "dt": 0.01}, ValueError, r"`accel` needs at least 2 values, got 0"),
-        ({"accel": [0.1], "dt": 0.01}, ValueError, r"`accel` needs at least 2 values, got 1"),
-        ({"accel": [0.1, np.nan, 0.2], "dt": 0.01}, ValueError, r"`accel` must be finite; index 1 holds nan"),
-        ({"accel": [0.1, 0.2, np.inf], "dt": 0.01}, ValueError, r"index 2 holds inf"),
-        ({"accel": [[0.1, 0.2]], "dt": 0.01}, ValueError, r"one-dimensional, got shape \(1, 2\)"),
-        ({"accel": ["a", "b"], "dt": 0.01}, TypeError, r"`accel` must be numbers"),
-        ({"accel": [0.1, 0.2], "dt": 0.0}, ValueError, r"`dt` must be > 0, got 0.0"),
-        ({"accel": [0.1, 0.2], "dt": -0.01}, ValueError, r"`dt` must be > 0, got -0.01"),
-        ({"accel": [0.1, 0.2], "dt": "0.01"}, TypeError, r"`dt` must be a number, got str"),
+        ({"accel": [], "dt": 0.01, "unit": "g"}, ValueError, r"`accel` needs at least 2 values, got 0"),
+        ({"accel": [0.1], "dt": 0.01, "unit": "g"}, ValueError, r"`accel` needs at least 2 values, got 1"),
+        ({"accel": [0.1, np.nan, 0.2], "dt": 0.01, "unit": "g"}, ValueError, r"`accel` must be finite; index 1 holds nan"),
+        ({"accel": [0.1, 0.2, np.inf], "dt": 0.01, "unit": "g"}, ValueError, r"index 2 holds inf"),
+        ({"accel": [[0.1, 0.2]], "dt": 0.01, "unit": "g"}, ValueError, r"one-dimensional, got shape \(1, 2\)"),
+        ({"accel": ["a", "b"], "dt": 0.01, "unit": "g"}, TypeError, r"`accel` must be numbers"),
+        ({"accel": [0.1, 0.2], "dt": 0.0, "unit": "g"}, ValueError, r"`dt` must be > 0, got 0.0"),
+        ({"accel": [0.1, 0.2], "dt": -0.01, "unit": "g"}, ValueError, r"`dt` must be > 0, got -0.01"),
+        ({"accel": [0.1, 0.2], "dt": "0.01", "unit": "g"}, TypeError, r"`dt` must be a number, got str"),
         ({"accel": [0.1, 0.2], "dt": 0.01, "unit": "furlong"}, ValueError, r"`unit` 'furlong' is not a known unit"),
         ({"accel": [0.1, 0.2], "dt": 0.01, "unit": 9.81}, TypeError, r"`unit` must be a unit name"),
     ],
@@ -108,6 +108,14 @@ def test_bad_record_input_is_named(kwargs, error, message):
     """Bad samples, dt or unit raise an error naming the argument, rule and value."""
     with pytest.raises(error, match=message):
         Record(**kwargs)
+
+
+def test_record_without_a_unit_is_a_type_error_listing_the_units():
+    """The unit is never assumed: Record(accel, dt) is a TypeError naming `unit` and every accepted unit."""
+    with pytest.raises(TypeError, match=r"`unit` is required: .*g, m/s2, cm/s2, gal, mm/s2, in/s2, ft/s2"):
+        Record([0.0, 0.1], 0.01)
+    with pytest.raises(TypeError, match=r"`unit` is required"):
+        Record(accel=[0.0, 0.1], dt=0.01, name="no unit")
 
 
 def test_from_text_single_column_with_header_is_reported():

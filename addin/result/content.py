@@ -48,7 +48,7 @@ from groundstep.core.methods import Method, resolve_method
 from groundstep.core.plausibility import check_record
 from groundstep.core.units import ACCELERATION_UNITS, STANDARD_GRAVITY, OutputUnits, output_units
 
-from . import sheets
+from . import limits, sheets
 from .layout import FORMAT_ID, WorkbookLayout
 
 __all__ = [
@@ -195,6 +195,7 @@ def build_report(
     raw = stored_record(record)
     record = processed_record(raw, settings)
     steps = record.history[len(raw.history) :]
+    _check_format_limits(record, raw.n if steps else 0, settings, command, source)
     out = output_units(record.unit)
     project = _project(settings)
     # sub-steps are shown per oscillator on the Peaks sheet; a yielding result is always converged
@@ -260,6 +261,20 @@ def build_report(
     if yielding:
         content["yielding_summary"] = _yielding_summary(yielding_oscillators, yielding, out)
     return Report(layout, content, _headline(record, spectrum, out, content, verification))
+
+
+def _check_format_limits(record: Record, n_raw: int, settings: ReportSettings, command: str, source: str) -> None:
+    """Refuse, before anything is computed, what the xlsx format cannot hold (``limits.py``)."""
+    limits.check_samples(record.n, n_raw)
+    texts = [("the record name", record.name), ("the command line", command), ("the record source", source)]
+    limits.check_text(texts + [(f"the project field {key!r}", str(text)) for key, text in settings.project])
+    n_periods = len(settings.periods)
+    limits.check_layout(sheets.result_layout(
+        record.n, n_periods, (0.0,) * len(settings.dampings), len(settings.oscillators), record.unit, "m",
+        len(settings.oscillators), n_raw=n_raw, n_frequencies=record.n // 2,
+        n_chart_frequencies=min(record.n // 2, sheets.CHART_POINTS), n_steps=2, n_findings=8,
+        ductilities=(1.0,) * len(settings.ductilities), n_ductility_periods=len(settings.yield_periods),
+    ))  # fmt: skip  # sizes known before computing (labels do not matter); Fourier rows n // 2 (rfft)
 
 
 def _findings(record: Record, settings: ReportSettings) -> dict[str, list[str]]:
