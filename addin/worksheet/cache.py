@@ -193,7 +193,7 @@ class PeriodMemory:
             asked.move_to_end(period)
             for store, most in ((asked, most_periods), (self._asked, most_settings), (self._seen, most_records)):
                 while len(store) > most:
-                    store.popitem(last=False)  # type: ignore[attr-defined]
+                    store.popitem(last=False)
         return (period, *others)
 
     def clear(self) -> None:

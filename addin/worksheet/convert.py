@@ -94,8 +94,12 @@ def peaks(record: Record, key: Hashable, oscillator: tuple[float, float], resolv
         values["substeps"] = int(spectrum.substeps[0, index])
         found.append(values)
     for each, values in zip(batch[1:], found[1:]):
-        cache.RESULTS.get_or_compute(("peak", key, (each, damping), method_id), lambda values=values: values)
+        cache.RESULTS.get_or_compute(("peak", key, (each, damping), method_id), _constant(values))
     return found[0]
+
+
+def _constant(value: dict[str, Any]) -> Callable[[], dict[str, Any]]:
+    return lambda: value
 
 
 def choice(value: Cell, quantities: dict[str, Quantity], what: str = "the quantity") -> Quantity:
