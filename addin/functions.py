@@ -3,7 +3,7 @@
 Users' workbooks name ``groundstep.addin.functions`` on their
 ``xlwings.conf`` sheet (``UDF Modules``), so this module keeps that name;
 the functions themselves are declared in ``groundstep.addin.worksheet`` (``functions.py``
-and ``records.py``).
+``records.py`` and ``suite.py``).
 """
 
 from groundstep.addin.worksheet.functions import (
@@ -11,6 +11,7 @@ from groundstep.addin.worksheet.functions import (
     CAUTION,
     ERROR_PREFIX,
     STEP_ABOUT,
+    STEP_CHECK,
     STEP_DUCTILITY,
     STEP_DUCTILITY_SPECTRUM,
     STEP_HISTORY,
@@ -18,12 +19,15 @@ from groundstep.addin.worksheet.functions import (
     STEP_SPECTRUM,
 )
 from groundstep.addin.worksheet.records import STEP_FOURIER, STEP_MEASURES, STEP_PROCESS
+from groundstep.addin.worksheet.suite import STEP_DESIGN_SPECTRUM, STEP_ROTD, STEP_SCALE
 
 __all__ = [
     "CATEGORY",
     "CAUTION",
     "ERROR_PREFIX",
     "STEP_ABOUT",
+    "STEP_CHECK",
+    "STEP_DESIGN_SPECTRUM",
     "STEP_DUCTILITY",
     "STEP_DUCTILITY_SPECTRUM",
     "STEP_FOURIER",
@@ -31,5 +35,7 @@ __all__ = [
     "STEP_MEASURES",
     "STEP_PEAK",
     "STEP_PROCESS",
+    "STEP_ROTD",
+    "STEP_SCALE",
     "STEP_SPECTRUM",
 ]

@@ -23,7 +23,10 @@ def as_float(value: object, argument: str) -> float:
     """Return `value` as a finite float or raise naming `argument`."""
     if isinstance(value, bool) or not isinstance(value, (Real, np.floating, np.integer)):
         raise TypeError(f"{named(argument)} must be a number, got {type(value).__name__} {value!r}")
-    number = float(value)
+    try:
+        number = float(value)
+    except OverflowError:  # an integer beyond float64's largest number (about 1.8e308)
+        raise ValueError(f"{named(argument)} must be finite, got an integer of {len(str(abs(value)))} digits") from None
     if not math.isfinite(number):
         raise ValueError(f"{named(argument)} must be finite, got {number!r}")
     return number
@@ -45,6 +48,8 @@ def as_vector(values: ArrayLike, argument: str, *, min_size: int = 1) -> NDArray
     """
     try:
         array = np.array(values, dtype=np.float64, copy=True)
+    except OverflowError:
+        raise ValueError(f"{named(argument)} holds an integer beyond float64's range (about 1.8e308)") from None
     except (TypeError, ValueError) as exc:
         raise TypeError(f"{named(argument)} must be numbers, got {values!r:.80}") from exc
     if array.ndim == 0:

@@ -26,6 +26,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from ._validate import as_float, as_vector, named, positive
+from .budget import PERIOD_RANGE, LimitError
 from .defaults import HARDENING_RANGE
 from .methods import Method, resolve_method
 
@@ -233,7 +234,8 @@ def check_period(value: ArrayLike, label: str = "period", *, rigid: bool = True)
     TypeError
         Not a number.
     ValueError
-        Not one finite number, negative, or 0 when `rigid` is False.
+        Not one finite number, negative, outside `budget.PERIOD_RANGE`, or 0
+        when `rigid` is False.
 
     Examples
     --------
@@ -269,7 +271,8 @@ def check_periods(values: ArrayLike, label: str = "periods") -> NDArray[np.float
     Raises
     ------
     TypeError, ValueError
-        Not numbers; a non-finite or negative entry, named by its index.
+        Not numbers; a non-finite or negative entry, or a positive one outside
+        `budget.PERIOD_RANGE` (1e-12 to 1e6 s), named by its index.
 
     Examples
     --------
@@ -281,6 +284,16 @@ def check_periods(values: ArrayLike, label: str = "periods") -> NDArray[np.float
     if negative.size:
         index = int(negative[0])
         raise ValueError(f"{named(label)} must be >= 0 s; index {index} holds {float(array[index])!r}")
+    low, high = PERIOD_RANGE
+    outside = np.flatnonzero((array != 0.0) & ((array < low) | (array > high)))
+    if outside.size:
+        index = int(outside[0])
+        raise LimitError(
+            f"{named(label)} must be 0 (rigid) or lie in [{low:g}, {high:g}] s; index {index} holds "
+            f"{float(array[index])!r}",
+            "check the unit of the periods (seconds)",
+            "check the unit of the periods (seconds)",
+        )
     return array
 
 
@@ -451,4 +464,15 @@ def check_method(method: object, label: str = "method", *, yielding: bool = Fals
             f"{named(label)} beta must be > 0: the Newmark step is implicit (beta 0, the explicit "
             f"central-difference step, is not offered), got {resolved.beta!r}; use 'average' or 'linear'"
         )
+    if resolved.beta < MIN_BETA:
+        # the step's coefficients scale as 1/(beta h²): below 1e-6 they pass 1e6/h² and, for a
+        # subnormal beta, float64 altogether
+        raise ValueError(
+            f"{named(label)} beta must be >= {MIN_BETA:g} (the step divides by beta), got {resolved.beta!r}; "
+            "use 'average' or 'linear'"
+        )
     return resolved
+
+
+#: Smallest Newmark beta accepted (see `check_method`).
+MIN_BETA = 1e-6

@@ -22,6 +22,7 @@ __all__ = [
     "DEFAULT_PERIOD_RANGE",
     "DEFAULT_STEP_RATIO",
     "DEFAULT_TOLERANCE",
+    "DEFAULT_YIELDING_STEP_RATIO",
     "HARDENING_RANGE",
     "default_periods",
 ]
@@ -30,6 +31,16 @@ __all__ = [
 #: of the period is common practice for the accuracy of peak response (the
 #: period error of average acceleration is then about (ωΔt)²/12 ≈ 3 %).
 DEFAULT_STEP_RATIO = 0.1
+
+#: Largest Δt/T for yielding (bilinear) oscillators. Newmark stepping is
+#: second order (Newmark 1959), but a yield or unloading event inside a step
+#: costs accuracy: at Δt/T = 0.1 ductility was off the converged solution by
+#: up to 5 % (T = 0.12 s, 10 s record at 0.01 s). The error falls as (Δt/T)²,
+#: so 0.02 (25 times smaller) keeps ductility, peak and residual displacement
+#: and hysteretic energy within 1 % of an event-driven reference
+#: (tests/test_yielding_accuracy.py); the cost is at most 5 times the steps,
+#: only at periods below 50·dt.
+DEFAULT_YIELDING_STEP_RATIO = 0.02
 
 #: Ratio of critical damping of one oscillator: 5 % is the value design
 #: spectra are commonly given for (common practice).

@@ -5,6 +5,7 @@ Fields are keyword-only and the repr is one line, as in ``results.py``.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -33,6 +34,10 @@ class ConvergenceError(RuntimeError):
         super().__init__(message)
         self.time = time
         self.residual = residual
+        #: The message without the advice on keywords, and advice for spreadsheet users
+        #: (see `groundstep.core.budget.LimitError`, which carries the same two).
+        self.fact = message
+        self.cell_advice = ""
 
 
 class ConvergenceWarning(UserWarning):
@@ -115,6 +120,10 @@ class InelasticResponse(MethodParameters):
     tolerance : float
         Accepted residual |R| [m/s²] (the relative tolerance times the
         reference force).
+    max_step_ratio : float
+        The largest Δt/T the sub-steps kept (NaN when sub-stepping was off);
+        the default 0.02 keeps the yielding results within 1 % of the
+        converged solution (``groundstep.core.defaults.DEFAULT_YIELDING_STEP_RATIO``).
     """
 
     period: float
@@ -153,6 +162,7 @@ class InelasticResponse(MethodParameters):
     converged: bool
     retried_steps: int
     tolerance: float
+    max_step_ratio: float = math.nan
 
 
     def __repr__(self) -> str:

@@ -8,6 +8,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from . import _coefficients, _kernels, _notices, _validate
+from . import budget as _budget
 from .checks import (
     check_damping,
     check_dampings,
@@ -119,8 +120,8 @@ def linear_response(
     damping = check_damping(damping, "damping")
     resolved = check_method(method)
     ratio = _check_ratio(max_step_ratio)
-    u0 = _validate.as_float(initial_displacement, "initial_displacement")
-    v0 = _validate.as_float(initial_velocity, "initial_velocity")
+    u0 = _budget.check_state(_validate.as_float(initial_displacement, "initial_displacement"), "initial_displacement", "m")
+    v0 = _budget.check_state(_validate.as_float(initial_velocity, "initial_velocity"), "initial_velocity", "m/s")
 
     time = record.time
     load = -record.accel
@@ -141,6 +142,7 @@ def linear_response(
         )  # fmt: skip
 
     coef, substeps = _step_coefficients(record.dt, np.array([period]), np.array([damping]), resolved, ratio)
+    _budget.check_work(record.n * float(substeps[0]), f"a response of {record.n} samples x {int(substeps[0])} sub-steps")
     _warn_substeps(period, record.dt, int(substeps[0]), resolved, ratio)
     displacement = np.empty(record.n)
     velocity = np.empty(record.n)
@@ -230,6 +232,10 @@ def elastic_spectrum(
     if moving.any():
         coef, used = _step_coefficients(record.dt, flat_t[moving], flat_z[moving], resolved, ratio)
         substeps[moving] = used
+        _budget.check_work(
+            record.n * float(used.sum()),
+            f"a spectrum of {record.n} samples x {used.size} oscillators x {used.mean():.3g} sub-steps on average",
+        )
         order = np.argsort(used, kind="stable")  # chunks of equal sub-step count
         found = np.empty((3, order.size))
         zeros = np.zeros(order.size)
@@ -307,7 +313,18 @@ def _check_record(record: object) -> Record:
 def _check_ratio(max_step_ratio: float | None) -> float | None:
     if max_step_ratio is None:
         return None
-    return _validate.positive(max_step_ratio, "max_step_ratio")
+    ratio = _validate.positive(max_step_ratio, "max_step_ratio")
+    if ratio < _MIN_STEP_RATIO:
+        raise _budget.LimitError(
+            f"`max_step_ratio` must be >= {_MIN_STEP_RATIO:g}, got {ratio!r}",
+            "pass None to turn the accuracy limit off, or a ratio such as 0.1",
+        )
+    return ratio
+
+
+#: Smallest accepted `max_step_ratio`: times the smallest period (1e-12 s) it keeps
+#: limit·T a normal float64 (1e-21), so dt/(limit·T) cannot divide by an underflowed zero.
+_MIN_STEP_RATIO = 1e-9
 
 
 def _limit_text(method: Method, ratio: float | None) -> str:

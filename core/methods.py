@@ -209,11 +209,14 @@ def substep_counts(
     needed = np.ceil(dt / (limit * periods[moving]) * (1.0 - 1e-12))
     if needed.size and needed.max() > MAX_SUBSTEPS:
         index = int(np.flatnonzero(moving)[np.argmax(needed)])
-        raise ValueError(
+        from .budget import LimitError  # budget builds on numpy only; imported here to keep methods first
+
+        rigid = "an oscillator this stiff moves with the ground: use period 0 (rigid, PSA = PGA)"
+        raise LimitError(
             f"period {float(periods.flat[index]):g} s would need {needed.max():.3g} sub-steps "
-            f"of the {dt:g} s record step to keep Δt/T <= {limit:.4g}; more than {MAX_SUBSTEPS}. "
-            "An oscillator this stiff moves with the ground: use period 0 (rigid, PSA = PGA)"
-            + ("" if method.stability_limit < math.inf else " or a larger `max_step_ratio`")
+            f"of the {dt:g} s record step to keep Δt/T <= {limit:.4g}; more than {MAX_SUBSTEPS}",
+            rigid + ("" if method.stability_limit < math.inf else " or a larger `max_step_ratio`"),
+            rigid,
         )
     counts[moving] = np.maximum(needed, 1).astype(np.int64)
     return counts

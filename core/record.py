@@ -5,24 +5,28 @@ from __future__ import annotations
 import hashlib
 import math
 import os
-import re
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
 from numpy.typing import NDArray
 
-from . import _notices, _validate
+from . import _notices, _record_text, _validate
+from . import budget as _budget
 from .units import ACCELERATION_UNITS, normalise_unit
 
 __all__ = ["ProcessingStep", "Record", "RecordTextWarning"]
 
 #: Largest deviation of a time value from uniform spacing, as a fraction of
-#: the step, still read as uniform. Printed time columns carry rounding of a
-#: few digits; 1 % of a step is common practice for accepting them.
-TIME_SPACING_TOLERANCE = 0.01
+#: the step, still read as uniform (common practice; see ``_record_text``).
+TIME_SPACING_TOLERANCE = _record_text.TIME_SPACING_TOLERANCE
 
-_SEPARATORS = re.compile(r"[,;\s]+")
+
+#: Significant digits of the samples the record digest covers: what a
+#: spreadsheet keeps of a number when it saves a file (15, the precision of
+#: Excel and LibreOffice Calc cells).
+DIGEST_SIGNIFICANT_DIGITS = 15
 
 
 class RecordTextWarning(UserWarning):
@@ -107,8 +111,10 @@ class Record:
     def __post_init__(self) -> None:
         unit = normalise_unit(self.unit, ACCELERATION_UNITS)
         samples = _validate.as_vector(self.accel, "accel", min_size=2)
-        dt = _validate.positive(self.dt, "dt")
-        si = samples if self.accel_is_si else samples * ACCELERATION_UNITS[unit]
+        dt = _budget.check_dt(_validate.positive(self.dt, "dt"))
+        factor = 1.0 if self.accel_is_si else ACCELERATION_UNITS[unit]
+        _budget.check_samples(samples, factor)  # before converting: the product stays finite
+        si = samples if self.accel_is_si else samples * factor
         si.flags.writeable = False
         history = tuple(self.history)
         for index, step in enumerate(history):
@@ -184,17 +190,21 @@ class Record:
         return displacement
 
     def sha256(self) -> str:
-        """SHA-256 hex digest of the samples (in the record's own unit) and of dt.
+        """SHA-256 hex digest of the samples (in the record's own unit) and of dt, to 15 digits.
 
         The digest covers the float64 little-endian bytes of
-        ``accel_in(unit)``, then the unit name and the repr of dt, so the
-        same values read back from a workbook in the same unit and passed to
-        ``Record`` give the same digest.
+        ``accel_in(unit)`` with each sample rounded to
+        `DIGEST_SIGNIFICANT_DIGITS` significant digits, then the unit name and
+        dt rounded the same way. Spreadsheets store 15 significant digits
+        (Excel and LibreOffice Calc both write a cell's number with 15), so a
+        workbook that another spreadsheet opened and saved unchanged gives the
+        same digest as the one written with every digit.
         """
         digest = hashlib.sha256()
-        samples = self.accel_in(self.unit) + 0.0  # + 0.0 turns -0.0 into 0.0: equal values, equal digest
+        samples = _round_significant(self.accel_in(self.unit)) + 0.0  # + 0.0: -0.0 and 0.0 give one digest
         digest.update(np.ascontiguousarray(samples, dtype="<f8").tobytes())
-        digest.update(f"|{self.unit}|{self.dt!r}".encode())
+        dt = float(_round_significant(np.array([self.dt]))[0])
+        digest.update(f"|{self.unit}|{dt!r}".encode())
         return digest.hexdigest()
 
     @classmethod
@@ -202,10 +212,11 @@ class Record:
         cls,
         source: str | os.PathLike[str],
         dt: float | None = None,
-        unit: str = "g",
+        unit: str | None = None,
         *,
         time_column: bool | None = None,
         name: str | None = None,
+        option_names: Mapping[str, str] | None = None,
     ) -> Record:
         """Read a record from plain numeric text or CSV.
 
@@ -215,9 +226,11 @@ class Record:
             A path to a file, or the text itself (a string holding a line
             break is read as text).
         dt : float, optional
-            Time step [s]. Required unless the text has a time column.
-        unit : str, default ``"g"``
-            Unit of the acceleration values.
+            Time step [s]. Required unless the text has a time column; when
+            both are given they must agree.
+        unit : str
+            Unit of the acceleration values (required: a wrong unit scales
+            every result, so none is assumed).
         time_column : bool, optional
             ``True``: every data line is ``time, acceleration``. ``False``:
             every number is an acceleration sample, read row-wise (several
@@ -227,6 +240,11 @@ class Record:
             its spacing must then be uniform, and a given `dt` must agree.
         name : str, optional
             Label; defaults to the file name.
+        option_names : mapping, optional
+            How messages name `dt`, `unit` and `time_column`, for callers
+            whose users give them otherwise, e.g. ``{"dt": "--dt"}`` in a
+            command line. Keys ``dt``, ``give_dt``, ``unit``, ``time_column``,
+            ``no_time_column``.
 
         Returns
         -------
@@ -235,9 +253,11 @@ class Record:
         Raises
         ------
         ValueError
-            No numbers found; a non-numeric line after the data began (its
-            line number is given); a time column that is not uniformly spaced
-            (first offending line); a `dt` that disagrees with the time column.
+            No unit; no numbers found; a non-numeric line after the data
+            began, or a blank line inside the data (its line number is given);
+            lines of different layout; a decimal mark that cannot be told from
+            a separator; a time column that is not uniformly spaced (first
+            offending line); a `dt` that disagrees with the time column.
 
         Warns
         -----
@@ -247,12 +267,38 @@ class Record:
 
         Notes
         -----
-        Separators are commas, semicolons, tabs or spaces. A time column is
-        accepted as uniform when every time lies within
-        ``TIME_SPACING_TOLERANCE``·dt of t0 + i·dt.
+        Separators are commas, semicolons, tabs or blanks. Decimal commas
+        (``0,20409``) are read when the file has no ``.`` and its fields are
+        separated by blanks or tabs, or when ``;`` separates the fields; a
+        mixture is refused naming the line. Several values per line are read
+        only when every line holds as many as the first (the last may hold
+        fewer). A time column is accepted as uniform when every time lies
+        within ``TIME_SPACING_TOLERANCE``·dt of t0 + i·dt; dt is its mean
+        step rounded to the decimals the column prints (``0.02``, not
+        ``0.019999999999999997``).
+
+        Examples
+        --------
+        >>> Record.from_text("0,0\\n0,1\\n-0,05\\n", dt=0.01, unit="g").accel_in("g").tolist()
+        [0.0, 0.1, -0.05]
+        >>> Record.from_text("0.00,0.0\\n0.02,0.1\\n0.04,0.0\\n", unit="g").dt
+        0.02
         """
+        names = dict(option_names or {})
+        words = _record_text.Words(
+            dt=names.get("dt", "`dt`"),
+            give_dt=names.get("give_dt", "pass dt=..."),
+            time_column=names.get("time_column", "time_column=True"),
+            no_time_column=names.get("no_time_column", "time_column=False"),
+        )
         text, label = _read_source(source)
-        header, rows, line_numbers = _parse_lines(text, label)
+        if unit is None:
+            raise ValueError(
+                f"{label}: the acceleration unit is not given; pass {names.get('unit', 'unit=...')} "
+                f"({', '.join(ACCELERATION_UNITS)}): a wrong unit scales every result, so none is assumed"
+            )
+        parsed = _record_text.parse(text, label, time_column, words)
+        rows, line_numbers = parsed.rows, parsed.line_numbers
         widths = {len(row) for row in rows}
         if time_column is None:
             time_column = widths == {2} and len(rows) >= 2 and _looks_like_time([row[0] for row in rows])
@@ -264,24 +310,26 @@ class Record:
                     "a time column needs exactly 'time, acceleration' on every line"
                 )
             table = np.array(rows, dtype=np.float64)
-            step = _uniform_step(table[:, 0], line_numbers, label)
+            step = _record_text.uniform_step(table[:, 0], [f[0] for f in parsed.fields], line_numbers, label)
             if dt is not None and not math.isclose(float(dt), step, rel_tol=1e-6):
                 raise ValueError(
-                    f"{label}: `dt` {dt!r} disagrees with the time column, which is spaced {step!r} s"
+                    f"{label}: {words.dt} {dt!r} disagrees with the time column, which is spaced {step!r} s; "
+                    f"leave out {words.dt} (the time column gives it) or check the file"
                 )
             samples = table[:, 1]
             dt = step
         else:
             if dt is None:
                 raise ValueError(
-                    f"{label}: `dt` is required when the text has no time column "
-                    "(pass dt=..., or time_column=True for 'time, acceleration' lines)"
+                    f"{label}: {words.dt} is required when the text has no time column "
+                    f"({words.give_dt}, or {words.time_column} for 'time, acceleration' lines)"
                 )
             samples = np.array([value for row in rows for value in row], dtype=np.float64)
+        header = parsed.header
         if header:
             _notices.warn(
                 RecordTextWarning(
-                    f"{label}: skipped {len(header)} non-numeric header line(s): {header[0]!r}"
+                    f"{label}: skipped {len(header)} non-numeric header line(s): {header[0][:60]!r}"
                     + (" ..." if len(header) > 1 else "")
                 ),
                 stacklevel=2,
@@ -289,42 +337,39 @@ class Record:
         return cls(samples, dt, unit, name=label if name is None else name, header=tuple(header))
 
 
+#: Largest record text read [bytes]: 64 MiB, about 7 million samples, read in a few
+#: hundred MB of memory. A longer record is cut or decimated before reading.
+MAX_TEXT_BYTES = 64 * 2**20
+
+
 def _read_source(source: str | os.PathLike[str]) -> tuple[str, str]:
     if isinstance(source, str) and ("\n" in source or "\r" in source):
+        if len(source) > MAX_TEXT_BYTES:
+            raise ValueError(f"the record text holds {len(source)} characters, more than {MAX_TEXT_BYTES}; cut it")
         return source, "text"
     path = Path(source)
     if not path.is_file():
-        raise ValueError(f"`source` {str(source)!r} is not a file (pass a path, or text holding line breaks)")
-    return path.read_text(encoding="utf-8-sig", errors="replace"), path.name
-
-
-def _parse_lines(text: str, label: str) -> tuple[list[str], list[list[float]], list[int]]:
-    header: list[str] = []
-    rows: list[list[float]] = []
-    line_numbers: list[int] = []
-    for number, line in enumerate(text.splitlines(), start=1):
-        stripped = line.strip()
-        if not stripped:
-            continue
-        fields = [item for item in _SEPARATORS.split(stripped) if item]
-        try:
-            values = [float(item) for item in fields]
-        except ValueError:
-            if rows:
-                raise ValueError(
-                    f"{label}: line {number} is not numeric ({stripped[:60]!r}) "
-                    "but data began earlier; only leading header lines are skipped"
-                ) from None
-            header.append(stripped)
-            continue
-        for item, value in zip(fields, values):
-            if not math.isfinite(value):
-                raise ValueError(f"{label}: line {number} holds a non-finite value {item!r}")
-        rows.append(values)
-        line_numbers.append(number)
-    if not rows:
-        raise ValueError(f"{label}: no numeric lines found")
-    return header, rows, line_numbers
+        if path.is_dir():
+            raise ValueError(f"`source` {str(source)[:200]!r} is a folder; pass the path of a text file in it")
+        if path.exists():
+            raise ValueError(
+                f"`source` {str(source)[:200]!r} is not a regular file (a named pipe, socket or device); "
+                "copy the record into a file"
+            )
+        raise ValueError(f"`source` {str(source)[:200]!r} is not a file (pass a path, or text holding line breaks)")
+    size = path.stat().st_size
+    if size > MAX_TEXT_BYTES:
+        raise ValueError(
+            f"{path.name}: {size / 2**20:.0f} MiB, more than the {MAX_TEXT_BYTES / 2**20:.0f} MiB a record text "
+            "may hold; cut the record or decimate it before reading"
+        )
+    raw = path.read_bytes()
+    if raw.startswith((b"\xff\xfe", b"\xfe\xff")) or raw[:4096].count(b"\x00") > len(raw[:4096]) // 4:
+        raise ValueError(
+            f"{path.name}: the file looks UTF-16 encoded (byte-order mark or NUL bytes); save it as UTF-8 "
+            "or plain text, or read it with open(path, encoding='utf-16').read() and pass the text"
+        )
+    return raw.decode("utf-8-sig", errors="replace"), path.name
 
 
 def _looks_like_time(values: list[float]) -> bool:
@@ -332,19 +377,7 @@ def _looks_like_time(values: list[float]) -> bool:
     return bool(np.all(np.diff(np.asarray(values, dtype=np.float64)) > 0.0))
 
 
-def _uniform_step(times: NDArray[np.float64], line_numbers: list[int], label: str) -> float:
-    if times.size < 2:
-        raise ValueError(f"{label}: a time column needs at least two lines")
-    steps = np.diff(times)
-    typical = float(np.median(steps))
-    if not typical > 0.0:
-        raise ValueError(f"{label}: the time column does not increase")
-    off = np.flatnonzero(np.abs(steps - typical) > TIME_SPACING_TOLERANCE * typical)
-    if off.size:
-        index = int(off[0]) + 1
-        raise ValueError(
-            f"{label}: the time column is not uniformly spaced: line {line_numbers[index]} "
-            f"has t = {float(times[index])!r}, {steps[index - 1]:.6g} s after the line before; "
-            f"the usual step is {typical:.6g} s"
-        )
-    return float((times[-1] - times[0]) / (times.size - 1))
+def _round_significant(values: NDArray[np.float64]) -> NDArray[np.float64]:
+    """Each value rounded to `DIGEST_SIGNIFICANT_DIGITS` significant digits (decimal, as printed)."""
+    text = np.char.mod(f"%.{DIGEST_SIGNIFICANT_DIGITS - 1}e", np.asarray(values, dtype=np.float64))
+    return text.astype(np.float64)

@@ -2,11 +2,19 @@
 
 from __future__ import annotations
 
+import os
+
 import pytest
+from hypothesis import HealthCheck, settings
 
 from groundstep.addin.result.content import Oscillator, ReportSettings, build_report
 from groundstep.addin.result.offline import write_report
 from groundstep.core.synthetic import synthetic_record
+
+# Fuzz budgets: "quick" (the default, CI) and "long" (HYPOTHESIS_PROFILE=long, or benchmarks/fuzz_long.py).
+settings.register_profile("quick", max_examples=150, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+settings.register_profile("long", max_examples=3000, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE", "quick"))
 
 PERIODS = (0.05, 0.1, 0.2, 0.5, 1.0, 2.0, 5.0)
 DAMPINGS = (0.02, 0.05)

@@ -155,6 +155,8 @@ def _as_file_keeps(value):
     """openpyxl writes floats with 16 significant digits ("%.16g", openpyxl.compat.strings.safe_string)."""
     if isinstance(value, float):
         return float(f"{value:.16g}")
+    if isinstance(value, str) and value.startswith("'"):  # Excel's quote prefix: stored as text, not shown
+        return value[1:]
     return value
 
 
@@ -225,8 +227,8 @@ def test_fill_open_book_reads_named_inputs():
     book.names.append(FakeName(book.names, "gs_in_unit", "=Input!$E$3", [["g"]]))
     result = live.fill_open_book(book, ReportSettings(periods=(0.2, 1.0), dampings=(0.05,)))
     assert result.content["record"]["dt"] == 0.01
-    # the stored record is rounded to the 16 digits a cell keeps: equal to 1e-15 relative
-    assert_allclose(result.content["record_table"]["accel"], record.accel_in("g"), rtol=1e-15, atol=0.0)
+    # the stored record is rounded to the 15 digits a spreadsheet keeps: half a unit of the 15th digit
+    assert_allclose(result.content["record_table"]["accel"], record.accel_in("g"), rtol=5e-15, atol=0.0)
     assert "Verification" in [s.name for s in book.sheets]
     assert book.sheets[0].name == "Input"  # the input sheet stays first and untouched
 
@@ -249,3 +251,19 @@ def test_fill_open_book_reads_reduction_factors():
     assert result.content["peaks_table"]["reduction_factor"] == [4.0, None, 1.5]
     yielding_title = book.sheets["Peaks"].cells[(9, 1)]  # 3 oscillators: the yielding table starts on row 9
     assert yielding_title.startswith("Yielding oscillators")
+
+
+def test_live_writer_sets_up_pages_through_excel_page_setup():
+    """set_page fits to one page wide, sets landscape, print titles and freezes panes through the COM members."""
+    from types import SimpleNamespace
+
+    from groundstep.addin.result.layout import PageSetup
+    from groundstep.addin.result.live_writer import XlwingsWriter
+
+    setup, window = SimpleNamespace(), SimpleNamespace()
+    sheet = SimpleNamespace(api=SimpleNamespace(PageSetup=setup), activate=lambda: None)
+    book = SimpleNamespace(sheets={"Record": sheet}, app=SimpleNamespace(api=SimpleNamespace(ActiveWindow=window)))
+    XlwingsWriter(book, {}).set_page("Record", PageSetup(landscape=True, title_rows=(8, 8), freeze=(9, 1)))
+    # Excel's constants: xlLandscape = 2; FitToPagesTall False = as many pages as needed
+    assert (setup.Orientation, setup.Zoom, setup.FitToPagesWide, setup.FitToPagesTall) == (2, False, 1, False)
+    assert setup.PrintTitleRows == "$8:$8" and (window.SplitRow, window.SplitColumn, window.FreezePanes) == (8, 0, True)

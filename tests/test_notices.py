@@ -42,7 +42,7 @@ def test_collected_list_holds_the_instances_with_their_messages():
         warnings.simplefilter("always")
         with collect_warnings() as caught:
             result = linear_response(record, 0.05)  # dt/T = 0.4 > 0.1: 4 sub-steps
-            Record.from_text("acceleration\n0.1\n0.2\n", dt=0.01)
+            Record.from_text("acceleration\n0.1\n0.2\n", dt=0.01, unit="g")
     assert emitted == []
     assert [type(w) for w in caught] == [SubstepWarning, RecordTextWarning]
     assert result.substeps == 4 and "split into 4 sub-steps" in str(caught[0])

@@ -114,7 +114,7 @@ def test_from_text_single_column_with_header_is_reported():
     """Leading non-numeric lines are skipped, kept in .header and reported by a warning."""
     text = "Invented test record\nunits: g\n0.0\n0.1\n-0.2\n"
     with pytest.warns(RecordTextWarning, match="skipped 2 non-numeric header line"):
-        record = Record.from_text(text, dt=0.005)
+        record = Record.from_text(text, dt=0.005, unit="g")
     assert record.header == ("Invented test record", "units: g")
     assert_allclose(record.accel_in("g"), [0.0, 0.1, -0.2], rtol=1e-15)
     assert record.dt == 0.005
@@ -152,13 +152,13 @@ def test_from_text_non_uniform_time_names_first_offending_line():
     """A gap in the time column is reported at its own line number."""
     text = "t a\n0.00 1\n0.01 2\n0.02 3\n0.04 4\n0.05 5\n0.06 6\n"
     with pytest.raises(ValueError, match=r"not uniformly spaced: line 5 has t = 0.04"):
-        Record.from_text(text)
+        Record.from_text(text, unit="g")
 
 
 def test_from_text_dt_must_agree_with_time_column():
     """An explicit dt that contradicts the time column is refused."""
     with pytest.raises(ValueError, match=r"`dt` 0.02 disagrees with the time column"):
-        Record.from_text("0 1\n0.01 2\n0.02 3\n", dt=0.02, time_column=True)
+        Record.from_text("0 1\n0.01 2\n0.02 3\n", dt=0.02, unit="g", time_column=True)
 
 
 @pytest.mark.parametrize(
@@ -168,24 +168,24 @@ def test_from_text_dt_must_agree_with_time_column():
         ("1\n2\nbad line\n3\n", {"dt": 0.01}, r"line 3 is not numeric \('bad line'\)"),
         ("1\n2\n3\n", {}, r"`dt` is required when the text has no time column"),
         ("1\n2\nnan\n", {"dt": 0.01}, r"line 3 holds a non-finite value 'nan'"),
-        ("0 1\n0.01 2 3\n", {"time_column": True}, r"line 2 holds 3 numbers"),
+        ("0 1\n0.01 2 3\n", {"time_column": True}, r"line 2 holds 3 value\(s\) but the first data line"),
     ],
 )
 def test_from_text_bad_input(text, kwargs, message):
     """Malformed text raises a ValueError naming the line and the rule."""
     with pytest.raises(ValueError, match=message):
-        Record.from_text(text, **kwargs)
+        Record.from_text(text, unit="g", **kwargs)
 
 
 def test_from_text_missing_file():
     """A path that is not a file is named in the message."""
     with pytest.raises(ValueError, match=r"'no_such_file.txt' is not a file"):
-        Record.from_text("no_such_file.txt", dt=0.01)
+        Record.from_text("no_such_file.txt", dt=0.01, unit="g")
 
 
 def test_two_columns_of_samples_are_read_row_wise():
     """Two numbers a line whose first column does not increase are two samples (row-wise)."""
-    record = Record.from_text("0.1 0.2\n0.3 0.4\n-0.2 0.1\n", dt=0.01)
+    record = Record.from_text("0.1 0.2\n0.3 0.4\n-0.2 0.1\n", dt=0.01, unit="g")
     assert_array_equal(record.accel_in("g"), [0.1, 0.2, 0.3, 0.4, -0.2, 0.1])
 
 
@@ -193,10 +193,10 @@ def test_time_column_is_recognised_even_with_dt_given():
     """A 'time, acceleration' file passed with a matching dt is not read as samples."""
     lines = ["time_s,accel_g"] + [f"{0.01 * i:.2f},{0.1 * np.sin(i):.6f}" for i in range(50)]
     with pytest.warns(RecordTextWarning):
-        record = Record.from_text("\n".join(lines), dt=0.01)
+        record = Record.from_text("\n".join(lines), dt=0.01, unit="g")
     assert record.n == 50
     assert_allclose(record.accel_in("g"), np.round(0.1 * np.sin(np.arange(50)), 6), rtol=1e-15)
-    assert Record.from_text("\n".join(lines[1:]), dt=0.01, time_column=False).n == 100
+    assert Record.from_text("\n".join(lines[1:]), dt=0.01, unit="g", time_column=False).n == 100
 
 
 def test_dataclasses_replace_keeps_samples():

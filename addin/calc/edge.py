@@ -93,6 +93,20 @@ ARGUMENT_RULES: dict[str, str] = {
     "filter_order": "positive",
     "bandwidth": "positive",
     "taper": "ambiguous",  # 0 (no taper) is valid and differs from the default 0.05
+    # design spectra, RotD and suite scaling (STEP_DESIGN_SPECTRUM, STEP_ROTD, STEP_SCALE)
+    "standard": "text",
+    "parameters": "range",
+    "accel_x": "range",
+    "accel_y": "range",
+    "percentile": "range",  # RotD0 is valid: a bare 0 is refused as ambiguous, a range passes
+    "record_spectra": "range",
+    "target": "range",
+    "rule": "text",
+    "range_low": "ambiguous",  # 0 s (PGA) is a valid lower bound, and blank means "take the preset's"
+    "range_high": "positive",
+    "fraction": "positive",
+    "preset": "text",
+    "structure_period": "positive",
 }
 
 _WORD = re.compile(r"[A-Z][a-z0-9]*")

@@ -19,8 +19,9 @@ import re
 from collections.abc import Sequence
 from typing import Any
 
+from groundstep.addin.common import as_text
 from groundstep.addin.result import layout as lay
-from groundstep.addin.result.render import SeriesRange, column_letter
+from groundstep.addin.result.render import Formula, SeriesRange, column_letter
 
 __all__ = ["CalcWriter", "calc_formula"]
 
@@ -72,7 +73,7 @@ class CalcWriter:
     def write_cells(self, sheet: str, row: int, column: int, values: Sequence[Sequence[Any]], number_format, bold) -> None:
         rows = [list(line) for line in values]
         target = self._sheet(sheet).getCellRangeByPosition(column - 1, row - 1, column + len(rows[0]) - 2, row + len(rows) - 2)
-        if any(isinstance(v, str) and v.startswith("=") for line in rows for v in line):
+        if any(isinstance(v, Formula) for line in rows for v in line):  # only the layout's own formulas
             target.setFormulaArray(tuple(tuple(_formula_text(v) for v in line) for line in rows))
         else:
             target.setDataArray(tuple(tuple(_data(v) for v in line) for line in rows))
@@ -113,6 +114,33 @@ class CalcWriter:
         if chart.log_x:
             document.getDiagram().getXAxis().Logarithmic = True
 
+    def set_page(self, sheet: str, page: lay.PageSetup) -> None:
+        """A page style of the sheet's own (Calc shares page styles between sheets), title rows, frozen panes."""
+        target = self._sheet(sheet)
+        styles = self.document.StyleFamilies.getByName("PageStyles")
+        name = f"groundstep {sheet}"
+        if not styles.hasByName(name):
+            styles.insertByName(name, self.document.createInstance("com.sun.star.style.PageStyle"))
+        style = styles.getByName(name)
+        if page.landscape and not style.IsLandscape:  # swap the paper's sides with the orientation
+            style.IsLandscape, style.Width, style.Height = True, style.Height, style.Width
+        if page.fit_width:
+            style.ScaleToPagesX, style.ScaleToPagesY = 1, 1 if page.fit_height else 0
+        target.PageStyle = name
+        if page.title_rows:
+            from .office import import_uno
+
+            rows = import_uno().createUnoStruct("com.sun.star.table.CellRangeAddress")
+            rows.Sheet = target.getCellByPosition(0, 0).getCellAddress().Sheet
+            rows.StartRow, rows.EndRow = page.title_rows[0] - 1, page.title_rows[1] - 1
+            target.setPrintTitleRows(True)
+            target.setTitleRows(rows)
+        if page.freeze:
+            controller = self.document.getCurrentController()
+            if controller is not None:  # a document loaded without a view has no panes to freeze
+                controller.setActiveSheet(target)
+                controller.freezeAtPosition(page.freeze[1] - 1, page.freeze[0] - 1)
+
     def _format_key(self, number_format: str) -> int:
         from .office import import_uno
 
@@ -126,7 +154,8 @@ def _formula_text(value: Any) -> str:
     if value is None:
         return ""
     if isinstance(value, str):
-        return calc_formula(value) if value.startswith("=") else value
+        # text beside a formula goes through the formula parser too: quote-prefix it so it stays text
+        return calc_formula(value) if isinstance(value, Formula) else str(as_text(value))
     return repr(float(value)) if not isinstance(value, bool) else ("1" if value else "0")
 
 

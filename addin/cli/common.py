@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import sys
 from collections.abc import Sequence
 from dataclasses import replace
 from pathlib import Path
@@ -11,7 +12,7 @@ from typing import Any
 from groundstep.addin.common import CAUTION
 from groundstep.addin.result.content import Oscillator, ReportSettings
 from groundstep.core import period_grid
-from groundstep.core.checks import check_hardening, check_integer, check_positive
+from groundstep.core.checks import check_damping, check_hardening, check_integer, check_period, check_positive
 from groundstep.core.defaults import DEFAULT_DAMPING
 
 __all__ = [
@@ -25,6 +26,7 @@ __all__ = [
     "add_spectrum_options",
     "floats",
     "print_headline",
+    "print_notes",
     "refuse_existing",
     "settings_from_options",
 ]
@@ -82,7 +84,9 @@ def settings_from_options(args: argparse.Namespace, base: ReportSettings | None 
         count = check_integer(parts[2], f"--periods {args.periods!r}: COUNT", minimum=2)
         changes["periods"] = tuple(float(p) for p in period_grid(parts[0], parts[1], count))
     if args.dampings:
-        changes["dampings"] = tuple(floats(args.dampings, "--dampings"))
+        changes["dampings"] = tuple(
+            check_damping(value, f"--dampings {args.dampings!r}") for value in floats(args.dampings, "--dampings", percent=True)
+        )
     if args.method:
         changes["method"] = tuple(floats(args.method, "--method")) if "," in args.method else args.method
     if args.max_step_ratio is not None:
@@ -93,11 +97,14 @@ def settings_from_options(args: argparse.Namespace, base: ReportSettings | None 
             label, *numbers = text.split(":")
             if any(not part.strip() for part in numbers[:2]):  # LABEL:PERIOD::R is not allowed: say the damping
                 numbers = []
-            values = floats(",".join(numbers), "--oscillator")
+            values = floats(",".join(numbers), f"--oscillator {label.strip()!r}:", percent=True)
             if not label.strip() or len(values) not in (1, 2, 3) or len(numbers) != len(values):
                 raise UsageError(
                     f"--oscillator {text!r}: give LABEL:PERIOD, LABEL:PERIOD:DAMPING or LABEL:PERIOD:DAMPING:R"
                 )
+            check_period(values[0], f"--oscillator {text!r}: PERIOD")
+            if len(values) >= 2:
+                check_damping(values[1], f"--oscillator {text!r}: DAMPING")
             if len(values) == 3:
                 check_positive(values[2], f"--oscillator {text!r}: the reduction factor R")
             damping = values[1] if len(values) >= 2 else DEFAULT_DAMPING
@@ -123,11 +130,21 @@ def _corners(text: str) -> tuple[float | None, float | None]:
     return low, high
 
 
-def floats(text: str, option: str) -> list[float]:
-    try:
-        return [float(part) for part in text.split(",") if part.strip()]
-    except ValueError:
-        raise UsageError(f"{option} {text!r}: expected comma-separated numbers") from None
+def floats(text: str, option: str, *, percent: bool = False) -> list[float]:
+    """Comma-separated numbers; with `percent`, ``5%`` is 0.05 (as a damping cell reads it)."""
+    found = []
+    for part in (item.strip() for item in text.split(",")):
+        if not part:
+            continue
+        scale = 1.0
+        if percent and part.endswith("%"):
+            part, scale = part[:-1].strip(), 0.01
+        try:
+            found.append(float(part) * scale)
+        except ValueError:
+            raise UsageError(f"{option} {text!r}: expected comma-separated numbers; {part!r} is not a number"
+                             + (" (e.g. 0.05 or 5%)" if percent else "")) from None  # fmt: skip
+    return found
 
 
 def refuse_existing(paths: Sequence[Path], force: bool) -> None:
@@ -164,3 +181,11 @@ def print_headline(out: Path, report: Any, seconds: float) -> None:
         "every step written as formulas (open in a spreadsheet; check with 'groundstep verify')"
     )
     print(f"  {CAUTION}")
+    print_notes(report.content.get("findings", {}))
+
+
+def print_notes(findings: dict[str, list[str]], prefix: str = "") -> None:
+    """The plausibility notes as ``groundstep: note: ...`` lines on stderr (none for the "none" row)."""
+    for check, message in zip(findings.get("check", []), findings.get("finding", [])):
+        if check != "none":
+            print(f"groundstep: note: {prefix}{message}", file=sys.stderr)

@@ -1,6 +1,6 @@
 """The ``groundstep`` command line: the parser and the dispatch to one module per command.
 
-Commands: ``batch``, ``demo``, ``fill``, ``spectrum``, ``verify``,
+Commands: ``batch``, ``demo``, ``fill``, ``spectrum``, ``suite``, ``verify``,
 ``templates``, ``calc-extension``, ``warm``. Exit codes (also in
 ``groundstep --help``):
 
@@ -23,7 +23,7 @@ from types import ModuleType
 
 from groundstep.addin.common import CAUTION
 
-from . import batch, calc_extension, demo, fill, spectrum, templates, verify, warm
+from . import batch, calc_extension, demo, fill, spectrum, suite, templates, verify, warm
 from .common import EXIT_INPUT, EXIT_INTERNAL
 
 __all__ = ["main"]
@@ -58,9 +58,18 @@ _COMMANDS: dict[str, tuple[ModuleType, str, str]] = {
         "or 'time, acceleration' lines). Each RECORD_FILE gives OUT_DIR/NAME.spectrum.csv (or .json, .xlsx). "
         "Several files run in parallel worker processes; progress goes to stderr.",
     ),
+    "suite": (
+        suite, "spectra of a record suite scaled to a design or target spectrum, in a suite workbook",
+        "Compute each record's spectra (RotD100, RotD50 and geometric mean for two components, PSA for one), "
+        "scale the suite to the target (--target ASCE7:... / EN1998:... / --target-table) under a rule "
+        "(--rule, --fraction, --preset with --period, or --range) and write a suite workbook: one sheet per "
+        "record, a Scaling sheet with factors, controlling period, mean/target and pass/fail per period, a chart "
+        "and an Audit sheet that 'groundstep verify' recomputes. Presets are from memory of the standards.",
+    ),
     "verify": (
         verify, "recompute a result workbook and report per block",
-        "Recompute every result block of a groundstep result workbook from its stored record and settings, "
+        "Recompute every result block of a groundstep result workbook from its stored record and settings "
+        "(a suite workbook: from its record files, digests checked), "
         "check the record's SHA-256, and print one line per block. Exit 0 when all match, 1 on any "
         "mismatch, 2 when the file is not readable as a groundstep result workbook.",
     ),

@@ -16,11 +16,20 @@ from collections.abc import Sequence
 from concurrent.futures import ProcessPoolExecutor, as_completed
 from pathlib import Path
 
-from groundstep.addin.common import CAUTION, write_atomically
+from groundstep.addin.common import CAUTION, as_text, write_atomically
 from groundstep.addin.result.content import ReportSettings
 from groundstep.addin.survey.task import one_numba_thread
 
-__all__ = ["plan_outputs", "run_batch", "spectrum_job"]
+__all__ = ["OPTION_NAMES", "plan_outputs", "run_batch", "spectrum_job"]
+
+#: How record-reading messages name the arguments on this command line.
+OPTION_NAMES = {
+    "dt": "--dt",
+    "give_dt": "pass --dt SECONDS",
+    "unit": "--unit",
+    "time_column": "--time-column yes",
+    "no_time_column": "--time-column no",
+}
 
 
 def plan_outputs(records: Sequence[str], out_dir: Path, fmt: str) -> list[tuple[Path, Path]]:
@@ -52,10 +61,13 @@ def spectrum_job(
     from groundstep.addin.result.content import build_report, processed_record, spectrum_table
     from groundstep.addin.result.offline import write_report
     from groundstep.core import Record, collect_warnings, elastic_spectrum
+    from groundstep.core.plausibility import check_record
     from groundstep.core.units import output_units
 
     with collect_warnings():
-        record = Record.from_text(source, dt, unit, time_column=time_column)
+        record = Record.from_text(source, dt, unit, time_column=time_column, option_names=OPTION_NAMES)
+        for finding in check_record(record, settings.periods):
+            print(f"groundstep: note: {source.name}: {finding}", file=sys.stderr)
         if target.suffix == ".xlsx":
             report = build_report(record, settings, command=command, source=source.name)
             write_report(report, target, force=True)
@@ -97,7 +109,7 @@ def spectrum_job(
         header = ["period [s]"]
         for damping in table["dampings"]:
             header += [f"{q.upper()} zeta={damping:g} [{table['units'][q]}]" for q in ("sd", "psv", "psa", "sa")]
-        writer.writerow(header)
+        writer.writerow([as_text(cell) for cell in header])  # text cells can never start a formula
         for j, period in enumerate(table["periods"]):
             row = [repr(period)]
             for i in range(len(table["dampings"])):

@@ -15,6 +15,7 @@ worksheet functions and name the range and row.
 
 from __future__ import annotations
 
+import datetime
 import io
 import os
 import re
@@ -23,6 +24,7 @@ from pathlib import Path
 from typing import Any
 
 from groundstep.addin.result.content import PROJECT_KEYS, Oscillator, ReportSettings
+from groundstep.addin.result.guard import UnsafeWorkbook, check_package
 from groundstep.addin.worksheet import cells as _cells
 from groundstep.core import Record
 from groundstep.core.checks import check_hardening, check_integer
@@ -31,7 +33,14 @@ from groundstep.core.units import ACCELERATION_UNITS
 
 from .names import lookup_names
 
-__all__ = ["InputError", "read_input_workbook", "settings_from_cells", "split_reference"]
+__all__ = [
+    "InputError",
+    "clip_reference",
+    "first_uncalculated_formula",
+    "read_input_workbook",
+    "settings_from_cells",
+    "split_reference",
+]
 
 _REFERENCE = re.compile(r"^(?:'((?:[^']|'')+)'|([^!]+))!(\$?[A-Za-z]{1,3}\$?\d+(?::\$?[A-Za-z]{1,3}\$?\d+)?)$")
 
@@ -89,6 +98,8 @@ def settings_from_cells(
         cell = get("dt")
         if cell is None:
             raise InputError("the workbook has no named time-step cell (input_dt); pass --dt SECONDS")
+        if _blank(cell):
+            raise InputError("the time-step cell (input_dt) is empty: enter the time step in seconds, or pass --dt SECONDS")
         dt = _cells.positive(cell, "the time-step cell", "s")
     if unit is None:  # never assumed: a wrong unit scales every result
         cell = get("unit")
@@ -137,10 +148,24 @@ def settings_from_cells(
     for key in PROJECT_KEYS:
         cell = get(key)
         if cell is not None:
-            project.append((key, _cells.text(cell, f"the {key} cell", "")))
+            project.append((key, _cells.text(_as_text(cell), f"the {key} cell", "")))
+    ductility_cells, yield_period_cells = get("ductilities"), get("yield_periods")
+    yield_damping_cell = get("yield_damping")
+    ductilities: tuple[float, ...] = base.ductilities
+    if ductility_cells is not None and not _blank_range(ductility_cells):
+        ductilities = tuple(float(d) for d in _cells.ductilities(ductility_cells, "the target ductilities"))
+    yield_periods: tuple[float, ...] = base.yield_periods
+    if yield_period_cells is not None and not _blank_range(yield_period_cells):
+        yield_periods = tuple(float(p) for p in _cells.periods(yield_period_cells, "the Yielding periods"))
+    yield_damping: float = base.yield_damping
+    if yield_damping_cell is not None and not _blank(yield_damping_cell):
+        yield_damping = float(_cells.dampings(yield_damping_cell, "the Yielding damping cell")[0])
     settings = ReportSettings(
-        # T = 0 (the PGA) is on the Summary sheet; a logarithmic period axis cannot show it
-        periods=tuple(float(p) for p in _cells.periods(periods, "the period range") if p > 0.0)
+        ductilities=ductilities,
+        yield_periods=yield_periods,
+        yield_damping=yield_damping,
+        # T = 0 (rigid: PSA = PGA) stays in the spectrum table; the charts leave it out
+        periods=tuple(float(p) for p in _cells.periods(periods, "the period range"))
         if periods is not None
         else base.periods,
         dampings=tuple(float(d) for d in _cells.dampings(dampings, "the damping range"))
@@ -192,18 +217,25 @@ def read_input_workbook(
 
     file = Path(path)
     if not file.is_file():
-        raise InputError(f"input workbook {str(file)!r} does not exist")
+        what = "a folder" if file.is_dir() else "not a regular file" if file.exists() else "does not exist"
+        raise InputError(f"input workbook {str(file)!r} {what}" if what == "does not exist"
+                         else f"input workbook {str(file)!r} is {what}; give an .xlsx file")
     try:
-        book = openpyxl.load_workbook(io.BytesIO(file.read_bytes()), data_only=True)
+        check_package(file)
+    except UnsafeWorkbook as exc:
+        raise InputError(str(exc)) from None
+    data = file.read_bytes()  # read once: the file itself is never opened for writing
+    try:
+        book = openpyxl.load_workbook(io.BytesIO(data), data_only=True, keep_vba=False)
     except Exception as exc:  # openpyxl raises several kinds for a file that is not .xlsx
-        raise InputError(f"{str(file)!r} cannot be read as an .xlsx workbook ({type(exc).__name__}: {exc})") from None
+        raise InputError(f"{str(file)!r} cannot be read as an .xlsx workbook ({type(exc).__name__}: {str(exc)[:120]})") from None
 
     def cells(sheet_name: str, reference: str) -> Any:
         if sheet_name not in book.sheetnames:
             raise InputError(f"{file.name}: no sheet {sheet_name!r}; the sheets are {book.sheetnames}")
-        found = book[sheet_name][reference]
+        found = book[sheet_name][clip_reference(reference, book[sheet_name].max_row, book[sheet_name].max_column)]
         if not isinstance(found, tuple):
-            return found.value
+            return [[found.value]]  # one cell as a spreadsheet passes it (a blank cell is not a missing name)
         if found and not isinstance(found[0], tuple):  # one row or one column given as A1:A1 style
             found = (found,)
         return [[cell.value for cell in row] for row in found]
@@ -222,14 +254,52 @@ def read_input_workbook(
                 return cells(sheet_name, reference.replace("$", ""))
         return None
 
+    _refuse_samples_below_the_range(book, get_destination=lambda key: _destination(book, key))
     source = file.name
     record_values = None
     if record is not None:
         sheet_name, reference = split_reference(record)
         record_values = cells(sheet_name, reference)
         source = f"{file.name} {sheet_name}!{reference}"
-    rec, settings = settings_from_cells(get, record_values=record_values, dt=dt, unit=unit, source=source, base=base)
+    try:
+        rec, settings = settings_from_cells(get, record_values=record_values, dt=dt, unit=unit, source=source, base=base)
+    except (InputError, _cells.CellError) as exc:
+        uncalculated = first_uncalculated_formula(data, book)
+        if uncalculated:
+            raise InputError(
+                f"{file.name}: {uncalculated} holds a formula with no saved value; open the file in a spreadsheet, "
+                f"let it calculate and save it, then run again ({exc})"
+            ) from None
+        raise
     return rec, settings, source
+
+
+def clip_reference(reference: str, max_row: int, max_column: int) -> str:
+    """`reference` (``A2:XFD1048576``) cut to the sheet's used area, so a whole-column range reads only used cells."""
+    from openpyxl.utils.cell import get_column_letter, range_boundaries
+
+    if ":" not in reference:
+        return reference
+    try:
+        low_col, low_row, high_col, high_row = range_boundaries(reference)
+    except ValueError:
+        return reference  # openpyxl names the problem when it reads the range
+    high_row = min(high_row or max_row, max(max_row, low_row))
+    high_col = min(high_col or max_column, max(max_column, low_col))
+    return f"{get_column_letter(low_col)}{low_row}:{get_column_letter(high_col)}{high_row}"
+
+
+def first_uncalculated_formula(data: bytes, values_book: Any) -> str:
+    """``Sheet!B7`` of the first formula cell with no saved value, or "" (a file written by a program, never opened)."""
+    import openpyxl
+
+    formulas = openpyxl.load_workbook(io.BytesIO(data), data_only=False, keep_vba=False)
+    for sheet in formulas.worksheets:
+        for row in sheet.iter_rows():
+            for cell in row:
+                if cell.data_type == "f" and values_book[sheet.title][cell.coordinate].value is None:
+                    return f"{sheet.title}!{cell.coordinate}"
+    return ""
 
 
 def _reduction_factors(factors: Any, periods: Any, count: int) -> list[float | None]:
@@ -278,3 +348,59 @@ def _labels(labels: Any, count: int) -> list[str]:
     texts = texts[-count:] if len(texts) > count else texts  # a header label above the list is dropped
     return [texts[i] if i < len(texts) and texts[i] else f"Oscillator {i + 1}" for i in range(count)]
 
+
+def _blank(cell: Any) -> bool:
+    """True for an empty cell, passed alone or as a one-cell range."""
+    while isinstance(cell, (list, tuple)) and len(cell) == 1:
+        cell = cell[0]
+    return cell is None or (isinstance(cell, str) and not cell.strip())
+
+
+def _destination(book: Any, key: str) -> tuple[str, str] | None:
+    """(sheet, reference) of input `key`'s defined name, or None."""
+    for name in lookup_names(key):
+        defined = book.defined_names.get(name)
+        if defined is not None:
+            sheet_name, reference = next(iter(defined.destinations))
+            return sheet_name.replace("''", "'"), reference.replace("$", "")
+    return None
+
+
+def _refuse_samples_below_the_range(book: Any, get_destination: Callable[[str], Any]) -> None:
+    """A record longer than its named range is refused, never cut (the template holds `RECORD_ROWS` samples)."""
+    found = get_destination("record")
+    if found is None or found[0] not in book.sheetnames:
+        return
+    sheet_name, reference = found
+    sheet = book[sheet_name]
+    match = re.fullmatch(r"([A-Za-z]{1,3})(\d+):([A-Za-z]{1,3})(\d+)", reference)
+    if match is None or match.group(1) != match.group(3):
+        return
+    column, last = match.group(1), int(match.group(4))
+    if sheet.max_row <= last:
+        return
+    below = next((c.row for (c,) in sheet[f"{column}{last + 1}:{column}{sheet.max_row}"] if c.value is not None), None)
+    if below is not None:
+        raise InputError(
+            f"{sheet_name}!{column}{below} holds a sample below the record range {sheet_name}!{reference} "
+            f"(input_record ends at row {last}; at most {last - 1:,} samples below the heading): the record "
+            "would be cut. Extend the input_record name to the last sample, or pass --record SHEET!RANGE"
+        )
+
+
+def _as_text(cell: Any) -> Any:
+    """A date cell as ISO text (``2026-03-01``); other cells as they are."""
+    inner = cell
+    while isinstance(inner, (list, tuple)) and len(inner) == 1:
+        inner = inner[0]
+    if isinstance(inner, datetime.datetime):
+        return inner.date().isoformat()
+    if isinstance(inner, datetime.date):
+        return inner.isoformat()
+    return cell
+
+
+def _blank_range(cells: Any) -> bool:
+    """True when every cell of a range is empty."""
+    flat = cells if not isinstance(cells, (list, tuple)) else [c for row in cells for c in (row if isinstance(row, (list, tuple)) else [row])]
+    return all(_blank(c) for c in (flat if isinstance(flat, list) else [flat]))

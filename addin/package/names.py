@@ -12,8 +12,10 @@ from dataclasses import dataclass
 
 __all__ = ["INPUTS", "INPUT_NAMES", "RECORD_ROWS", "Input", "lookup_names"]
 
-#: Rows of the template's acceleration column: a heading in row 1, samples in rows 2 to 40001.
-RECORD_ROWS = 40_000
+#: Rows of the template's acceleration column: a heading in row 1, samples in rows 2 to 200001
+#: (1000 s at 0.005 s). A longer record is refused by ``fill``, naming the first row beyond
+#: the range, never cut; a defined name extended by hand to the last sample lifts the limit.
+RECORD_ROWS = 200_000
 
 
 @dataclass(frozen=True, slots=True)

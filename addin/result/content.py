@@ -28,6 +28,7 @@ from groundstep.core import (
     bandpass,
     baseline_correct,
     collect_warnings,
+    ductility_spectrum,
     elastic_spectrum,
     fourier_amplitude,
     ground_motion_measures,
@@ -40,10 +41,12 @@ from groundstep.core.defaults import (
     DEFAULT_DAMPINGS,
     DEFAULT_STEP_RATIO,
     DEFAULT_TOLERANCE,
+    DEFAULT_YIELDING_STEP_RATIO,
     default_periods,
 )
 from groundstep.core.methods import Method, resolve_method
-from groundstep.core.units import ACCELERATION_UNITS, OutputUnits, output_units
+from groundstep.core.plausibility import check_record
+from groundstep.core.units import ACCELERATION_UNITS, STANDARD_GRAVITY, OutputUnits, output_units
 
 from . import sheets
 from .layout import FORMAT_ID, WorkbookLayout
@@ -58,13 +61,14 @@ __all__ = [
     "spectrum_table",
     "stored_record",
     "yielding_method",
+    "yielding_step_ratio",
 ]
 
 #: Largest h/T the Verification oscillator may have: at or below the default
 #: sub-stepping limit, so the sheet replays exactly the steps groundstep takes.
 _VERIFY_STEP_RATIO = DEFAULT_STEP_RATIO
 #: Keys of the Summary sheet's project block, in order.
-PROJECT_KEYS = ("project", "site", "structure", "engineer", "scenario")
+PROJECT_KEYS = ("project", "site", "structure", "engineer", "scenario", "project_number", "checker", "date")
 
 
 def _default_periods() -> tuple[float, ...]:
@@ -119,6 +123,10 @@ class ReportSettings:
         (``groundstep.core.bandpass``, its defaults otherwise: order 4,
         5 % taper, pads kept); both None: no filter, one None: a high- or
         low-pass.
+    ductilities, yield_periods, yield_damping : tuple, tuple, float
+        The constant-ductility spectrum of the Ductility sheet (the
+        template's Yielding sheet): target ductilities (>= 1), periods [s]
+        and damping ratio; no sheet when either tuple is empty.
     """
 
     periods: tuple[float, ...] = field(default_factory=_default_periods)
@@ -133,6 +141,9 @@ class ReportSettings:
     baseline_order: int | None = None
     low_hz: float | None = None
     high_hz: float | None = None
+    ductilities: tuple[float, ...] = ()
+    yield_periods: tuple[float, ...] = ()
+    yield_damping: float = DEFAULT_DAMPING
 
 
 @dataclass(frozen=True, slots=True)
@@ -190,48 +201,74 @@ def build_report(
     with collect_warnings():
         spectrum = elastic_spectrum(record, settings.periods, settings.dampings, method,
                                     max_step_ratio=settings.max_step_ratio)  # fmt: skip
+        # the self-check beside each ordinate: the exact piecewise-linear solution, peaks read as often
+        exact = spectrum if method.name == "exact" else elastic_spectrum(
+            record, settings.periods, settings.dampings, "exact", max_step_ratio=settings.max_step_ratio
+        )
         peaks = [
             linear_response(record, o.period, o.damping, method, max_step_ratio=settings.max_step_ratio)
             for o in settings.oscillators
         ]
         yielding_oscillators, yielding = _yielding_responses(record, settings, method)
+        ductility = _ductility_spectrum(record, settings, method)
         # measures warn of an all-zero record or a cut mean-period band; the values say so (NaN, 0)
         measures = ground_motion_measures(record)
         raw_measures = ground_motion_measures(raw) if steps else None
     shift = _time_shift(raw, record)
     fourier = _fourier_blocks(record, out)
     verification = _verification_oscillator(record, settings, method)
+    findings = _findings(record, settings)
     layout = sheets.result_layout(
         record.n, spectrum.periods.size, tuple(float(d) for d in spectrum.dampings), len(peaks),
         out.acceleration, out.length, len(yielding), n_raw=raw.n if steps else 0,
         n_frequencies=len(fourier["fourier_table"]["frequency"]),
         n_chart_frequencies=len(fourier["fourier_chart_table"]["frequency"]), n_steps=len(steps),
+        n_findings=len(findings["check"]),
+        ductilities=tuple(float(d) for d in ductility.ductilities) if ductility is not None else (),
+        n_ductility_periods=ductility.periods.size if ductility is not None else 0,
+        n_rigid=int(np.argmax(spectrum.periods > 0.0)) if spectrum.periods.max() > 0.0 else spectrum.periods.size,
     )  # fmt: skip
     table = spectrum_table(spectrum, out)
     content: dict[str, dict[str, Any]] = {
-        "project": {key: project.get(key, "") for key in PROJECT_KEYS},
+        "project": {key: project.get(key, "") for key in PROJECT_KEYS[:5]},
+        "review": {key: project.get(key, "") for key in PROJECT_KEYS[5:]},
         "record_summary": _record_summary(raw, measures, out),
         "key_results": _key_results(spectrum, table),
         "check": {},
+        "findings": findings,
         "record": {"record_unit": record.unit, "dt": record.dt, "unit_factor": ACCELERATION_UNITS[record.unit]},
         "record_table": _record_columns(record, out, shift),
         "measures": _measures_block(measures, "measure_", out, shift),
         "arias_table": _arias_columns(measures, shift),
         **fourier,
         "processing_table": {"step": [step.describe() for step in steps]},
-        "spectra_table": _spectra_columns(table),
+        "spectra_table": _spectra_columns(table, spectrum, exact),
         "peaks_table": _peaks_table(settings.oscillators, peaks, out),
         "yielding_table": _yielding_table(yielding_oscillators, yielding, out, settings.hardening, method),
         **_verification_blocks(record, *verification),
-        "audit": _audit(raw, command, source, created),
+        "audit": {
+            **_audit(raw, command, source, created),
+            "reviewed": " / ".join(project.get(key, "") or "-" for key in PROJECT_KEYS[5:]),
+        },
         "settings": _settings_block(settings, spectrum, method),
     }
     if raw_measures is not None:
         content["raw_table"] = _record_columns(raw, out, 0.0)
         content["raw_measures"] = _measures_block(raw_measures, "raw_measure_", out, 0.0)
+    if ductility is not None:
+        content.update(_ductility_blocks(ductility, settings, method))
     if yielding:
         content["yielding_summary"] = _yielding_summary(yielding_oscillators, yielding, out)
     return Report(layout, content, _headline(record, spectrum, out, content, verification))
+
+
+def _findings(record: Record, settings: ReportSettings) -> dict[str, list[str]]:
+    """The plausibility notes of the record and every period the workbook uses; one "none" row when empty."""
+    periods = [*settings.periods, *(o.period for o in settings.oscillators)]
+    found = check_record(record, periods)
+    if not found:
+        return {"check": ["none"], "finding": ["no plausibility notes (time step, PGA for the unit, periods, drift)"]}
+    return {"check": [f.check for f in found], "finding": [f.message for f in found]}
 
 
 def _project(settings: ReportSettings) -> dict[str, str]:
@@ -325,11 +362,16 @@ def _fourier_blocks(record: Record, out: OutputUnits) -> dict[str, dict[str, lis
     }
 
 
-def _spectra_columns(table: dict[str, Any]) -> dict[str, Any]:
+def _spectra_columns(table: dict[str, Any], spectrum: ElasticSpectrum, exact: ElasticSpectrum) -> dict[str, Any]:
+    """The spectra, and beside each damping the relative difference of PSA from the exact solution, flagged."""
     columns: dict[str, Any] = {"period": table["periods"]}
+    with np.errstate(divide="ignore", invalid="ignore"):
+        difference = np.where(exact.psa > 0.0, spectrum.psa / exact.psa - 1.0, 0.0)
     for i in range(len(table["dampings"])):
         for quantity in ("sd", "psv", "psa", "sa"):
             columns[f"{quantity}_{i}"] = table[quantity][i]
+        columns[f"exact_{i}"] = difference[i].tolist()
+        columns[f"exact_flag_{i}"] = ["yes" if abs(d) > sheets.EXACT_TOLERANCE else "" for d in difference[i]]
     return columns
 
 
@@ -467,24 +509,27 @@ def spectrum_table(spectrum: ElasticSpectrum, out: OutputUnits) -> dict[str, Any
 
 
 def stored_record(record: Record) -> Record:
-    """The record exactly as a workbook cell stores it.
+    """The record exactly as a workbook cell stores it: 15 significant digits.
 
-    Spreadsheet files keep 15 to 16 significant digits, and a sample in the
-    record's unit may need 17; the record is rounded to 16 digits (in its own
-    unit, negative zeros made positive) until that no longer changes it, so the Record sheet, the results
-    computed here and the SHA-256 on the Audit sheet all describe the same
-    samples. A record read from text (at most 15 digits) is returned as is.
+    Spreadsheets keep 15 significant digits of a cell's number (Excel and
+    LibreOffice Calc write no more when they save), and a sample in the
+    record's unit may need 17; the record is rounded to 15 digits (in its own
+    unit, negative zeros made positive) until that no longer changes it, so
+    the Record sheet, the results computed here and the SHA-256 on the Audit
+    sheet (also over 15 digits) describe the same samples, before and after
+    another spreadsheet saves the file. A record read from text with at
+    most 15 digits is returned as is.
     """
     current = record
     for _ in range(6):  # 2-3 rounds suffice in practice
         # + 0.0 turns -0.0 (written "-0", read back as 0) into 0.0
-        written = [float(f"{value:.16g}") + 0.0 for value in current.accel_in(current.unit)]
+        written = [float(f"{value:.15g}") + 0.0 for value in current.accel_in(current.unit)]
         candidate = Record(np.asarray(written), record.dt, record.unit, name=record.name, header=record.header,
                            history=record.history)  # fmt: skip
         if candidate.accel.tobytes() == current.accel.tobytes():
             return current
         current = candidate
-    raise RuntimeError("the record's samples do not settle when rounded to 16 digits")
+    raise RuntimeError("the record's samples do not settle when rounded to 15 digits")
 
 
 def _verification_oscillator(record: Record, settings: ReportSettings, method) -> tuple[float, float, float, float]:
@@ -527,18 +572,55 @@ def _reduction_factor(oscillator: Oscillator) -> float | None:
     return check_positive(oscillator.reduction_factor, f"oscillator {oscillator.label!r}: reduction factor R")
 
 
+def _ductility_spectrum(record: Record, settings: ReportSettings, method: Method):
+    """The Ductility sheet's constant-ductility spectrum, or None when no targets or periods are given."""
+    if not settings.ductilities or not settings.yield_periods:
+        return None
+    return ductility_spectrum(
+        record, settings.yield_periods, settings.ductilities, settings.yield_damping, yielding_method(method),
+        hardening=settings.hardening, max_step_ratio=yielding_step_ratio(settings.max_step_ratio),
+    )  # fmt: skip
+
+
+def _ductility_blocks(spectrum, settings: ReportSettings, method: Method) -> dict[str, dict[str, Any]]:
+    table: dict[str, Any] = {"period": spectrum.periods.tolist()}
+    for i in range(spectrum.ductilities.size):
+        table[f"cy_{i}"] = spectrum.yield_coefficient[i].tolist()
+        table[f"r_{i}"] = spectrum.reduction_factor[i].tolist()
+    return {
+        "ductility_settings": {
+            "ductilities": ", ".join(repr(float(d)) for d in spectrum.ductilities),
+            "yield_damping": float(spectrum.damping),
+            "ductility_method": _yielding_text(settings.hardening, method),
+        },
+        "ductility_table": table,
+    }
+
+
+def yielding_step_ratio(ratio: float | None) -> float | None:
+    """Largest Δt/T of the yielding oscillators: the workbook's ratio, at most `DEFAULT_YIELDING_STEP_RATIO`.
+
+    A yielding oscillator needs a finer step than an elastic one for 1 %
+    accuracy (``groundstep.core.defaults``); None (sub-stepping off) stays off.
+    """
+    return None if ratio is None else min(float(ratio), DEFAULT_YIELDING_STEP_RATIO)
+
+
 def _yielding_responses(record: Record, settings: ReportSettings, method: Method):
     """The oscillators that carry R, and their ``inelastic_response`` results."""
     check_hardening(settings.hardening, "hardening (post-yield stiffness ratio α)")
     used = yielding_method(method)
     chosen = [o for o in settings.oscillators if _reduction_factor(o) is not None]
-    results = [
-        inelastic_response(
-            record, o.period, o.damping, method=used, reduction_factor=float(o.reduction_factor or 0.0),
-            hardening=settings.hardening, max_step_ratio=settings.max_step_ratio,
-        )
-        for o in chosen
-    ]  # fmt: skip
+    results = []
+    for o in chosen:
+        # R divides the elastic force the Peaks sheet shows (the workbook's step ratio); the yielding
+        # oscillator itself steps at the finer yielding ratio for 1 % accuracy
+        elastic = linear_response(record, o.period, o.damping, used, max_step_ratio=settings.max_step_ratio)
+        coefficient = elastic.pseudo_acceleration / float(o.reduction_factor or 1.0) / STANDARD_GRAVITY
+        results.append(inelastic_response(
+            record, o.period, o.damping, method=used, yield_coefficient=coefficient,
+            hardening=settings.hardening, max_step_ratio=yielding_step_ratio(settings.max_step_ratio),
+        ))  # fmt: skip
     return chosen, results
 
 
@@ -548,7 +630,10 @@ def _yielding_text(hardening: float, method: Method) -> str:
     spring = "bilinear, elastoplastic (hardening α = 0)" if hardening == 0.0 else (
         f"bilinear, kinematic hardening α = {hardening:g}"
     )
-    text = f"{spring}; {used.describe()}, Newton-Raphson iterations on the residual force each step"
+    text = (
+        f"{spring}; {used.describe()}, Newton-Raphson iterations on the residual force each step; "
+        f"h/T <= {DEFAULT_YIELDING_STEP_RATIO:g} (1 % accuracy)"
+    )
     if not (method.is_newmark and method.beta > 0.0):
         text += f" (the workbook's {method.name} method has no yielding form)"
     return text

@@ -36,6 +36,7 @@ __all__ = [
     "Fields",
     "FormulaColumn",
     "FormulaTable",
+    "PageSetup",
     "Sheet",
     "Table",
     "WorkbookLayout",
@@ -161,6 +162,7 @@ class Chart:
     row: int
     column: int
     log_x: bool = False
+    skip_rows: int = 0
     log_y: bool = False
     width_cm: float = 16.0
     height_cm: float = 8.5
@@ -175,6 +177,24 @@ class Sheet:
     blocks: tuple[Fields | Table | FormulaTable, ...]
     charts: tuple[Chart, ...] = ()
     note: str = ""
+
+
+@dataclass(frozen=True, slots=True)
+class PageSetup:
+    """How a sheet prints: orientation, fit to the page width, repeated title rows, frozen panes.
+
+    `title_rows` is (first, last) sheet row repeated at the top of every
+    printed page; `freeze` is the (row, column) of the first cell that
+    scrolls. `fit_height` also fits the whole sheet on one page tall (the
+    Summary). Fitting to the width scales the sheet to the paper, so it holds
+    for A4 and Letter alike.
+    """
+
+    landscape: bool = False
+    fit_width: bool = True
+    fit_height: bool = False
+    title_rows: tuple[int, int] | None = None
+    freeze: tuple[int, int] | None = None
 
 
 @dataclass(frozen=True, slots=True)

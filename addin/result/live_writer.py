@@ -14,8 +14,10 @@ from __future__ import annotations
 from collections.abc import Sequence
 from typing import Any
 
+from groundstep.addin.common import as_text
+
 from . import layout as lay
-from .render import SeriesRange
+from .render import Formula, SeriesRange
 
 __all__ = ["XlwingsWriter"]
 
@@ -23,6 +25,7 @@ __all__ = ["XlwingsWriter"]
 _SCATTER = "xy_scatter_lines_no_markers"
 _LOG_SCALE = -4133  # Excel XlScaleType.xlScaleLogarithmic
 _CATEGORY_AXIS = 1  # Excel XlAxisType.xlCategory (the x axis of a scatter chart)
+_PORTRAIT, _LANDSCAPE = 1, 2  # Excel XlPageOrientation xlPortrait, xlLandscape
 _VALUE_AXIS = 2  # Excel XlAxisType.xlValue (the y axis)
 _POINTS_PER_CM = 28.3465
 
@@ -59,9 +62,9 @@ class XlwingsWriter:
             self.book.sheets.add(name)
 
     def write_cells(self, sheet: str, row: int, column: int, values: Sequence[Sequence[Any]], number_format, bold) -> None:
-        rows = [list(line) for line in values]
+        rows = [[v if isinstance(v, Formula) else as_text(v) for v in line] for line in values]
         target = self._sheet(sheet).range((row, column)).resize(len(rows), len(rows[0]))
-        if any(isinstance(v, str) and v.startswith("=") for line in rows for v in line):
+        if any(isinstance(v, Formula) for line in rows for v in line):
             target.formula = rows
         else:
             target.value = rows
@@ -78,6 +81,27 @@ class XlwingsWriter:
 
     def set_column_width(self, sheet: str, column: int, width: float) -> None:
         self._sheet(sheet).range((1, column)).column_width = width
+
+    def set_page(self, sheet: str, page: lay.PageSetup) -> None:
+        """Excel's PageSetup through the COM object (Windows and macOS Excel expose the same members)."""
+        ws = self._sheet(sheet)
+        try:
+            setup = ws.api.PageSetup
+        except (AttributeError, TypeError):  # no Excel object model (tests, other hosts): the print set-up is skipped
+            return
+        setup.Orientation = _LANDSCAPE if page.landscape else _PORTRAIT
+        if page.fit_width:
+            setup.Zoom = False
+            setup.FitToPagesWide = 1
+            setup.FitToPagesTall = 1 if page.fit_height else False  # False: as many pages tall as needed
+        if page.title_rows:
+            setup.PrintTitleRows = f"${page.title_rows[0]}:${page.title_rows[1]}"
+        if page.freeze:
+            ws.activate()
+            window = self.book.app.api.ActiveWindow
+            window.FreezePanes = False
+            window.SplitRow, window.SplitColumn = page.freeze[0] - 1, page.freeze[1] - 1
+            window.FreezePanes = True
 
     def add_chart(self, sheet: str, chart: lay.Chart, x: SeriesRange, series) -> None:
         ws = self._sheet(sheet)

@@ -22,7 +22,7 @@ from groundstep.addin.common import write_atomically
 
 from . import layout as lay
 from .content import Report
-from .render import SeriesRange, column_letter, render
+from .render import Formula, SeriesRange, column_letter, render
 
 __all__ = ["OpenpyxlWriter", "write_report", "write_workbook_atomically"]
 
@@ -48,6 +48,8 @@ class OpenpyxlWriter:
         for i, line in enumerate(values):
             for j, value in enumerate(line):
                 cell = ws.cell(row=row + i, column=column + j, value=value)
+                if isinstance(value, str) and not isinstance(value, Formula):
+                    cell.data_type = "s"  # text stays text whatever its first character
                 if number_format:
                     cell.number_format = number_format
                 if bold:
@@ -58,6 +60,18 @@ class OpenpyxlWriter:
 
     def set_column_width(self, sheet: str, column: int, width: float) -> None:
         self.book[sheet].column_dimensions[column_letter(column)].width = width
+
+    def set_page(self, sheet: str, page: lay.PageSetup) -> None:
+        ws = self.book[sheet]
+        ws.page_setup.orientation = "landscape" if page.landscape else "portrait"
+        if page.fit_width:
+            ws.sheet_properties.pageSetUpPr.fitToPage = True
+            ws.page_setup.fitToWidth = 1
+            ws.page_setup.fitToHeight = 1 if page.fit_height else 0  # 0: as many pages tall as needed
+        if page.title_rows:
+            ws.print_title_rows = f"{page.title_rows[0]}:{page.title_rows[1]}"
+        if page.freeze:
+            ws.freeze_panes = f"{column_letter(page.freeze[1])}{page.freeze[0]}"
 
     def add_chart(self, sheet: str, chart: lay.Chart, x: SeriesRange, series) -> None:
         ws = self.book[sheet]

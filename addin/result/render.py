@@ -8,14 +8,27 @@ dictionary, used by ``verify`` and by tests).
 
 from __future__ import annotations
 
+import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 from types import SimpleNamespace
 from typing import Any, Protocol
 
 from . import layout as lay
+from . import printing
 
-__all__ = ["CellRecorder", "SeriesRange", "SheetWriter", "block_cells", "column_letter", "render"]
+__all__ = ["CellRecorder", "Formula", "SeriesRange", "SheetWriter", "block_cells", "column_letter", "render"]
+
+
+class Formula(str):
+    """A formula the layout itself writes (``=MAX(...)``); every other text a writer receives is text.
+
+    Writers write a `Formula` as a formula and any plain ``str`` as text,
+    whatever its first character, so text copied from inputs (titles,
+    labels, sheet and file names) never becomes a formula.
+    """
+
+    __slots__ = ()
 
 
 @dataclass(frozen=True, slots=True)
@@ -42,7 +55,7 @@ class SheetWriter(Protocol):
     def write_cells(
         self, sheet: str, row: int, column: int, values: Sequence[Sequence[Any]], number_format: str | None, bold: bool
     ) -> None:
-        """Write a rectangle of values (rows of cells); a string starting with ``=`` is a formula."""
+        """Write a rectangle of values (rows of cells); a `Formula` is a formula, any other ``str`` is text."""
 
     def define_name(self, name: str, sheet: str, reference: str) -> None:
         """Workbook-level name for ``sheet!reference`` (reference like ``$B$5`` or ``$B$9:$B$20``)."""
@@ -52,6 +65,9 @@ class SheetWriter(Protocol):
 
     def add_chart(self, sheet: str, chart: lay.Chart, x: SeriesRange, series: Sequence[tuple[str, SeriesRange]]) -> None:
         """A scatter chart (lines, no markers) of each (title, y range) against `x`."""
+
+    def set_page(self, sheet: str, page: lay.PageSetup) -> None:
+        """Print set-up: orientation, fit to width (and height), repeated title rows, frozen panes."""
 
 
 def column_letter(column: int) -> str:
@@ -76,9 +92,10 @@ def render(workbook: lay.WorkbookLayout, content: dict[str, dict[str, Any]], wri
             _define_names(sheet, block, writer)
         for chart in sheet.charts:
             table = next(b for b in sheet.blocks if b.key == chart.table)
-            x = _column_range(sheet.name, table, chart.x)
-            series = [(title, _column_range(sheet.name, table, key)) for key, title in chart.series]
+            x = _column_range(sheet.name, table, chart.x, chart.skip_rows)
+            series = [(title, _column_range(sheet.name, table, key, chart.skip_rows)) for key, title in chart.series]
             writer.add_chart(sheet.name, chart, x, series)
+        writer.set_page(sheet.name, printing.page_setup(sheet, summary=sheet is workbook.sheets[0]))
 
 
 def render_block(sheet: lay.Sheet, block, values: dict[str, Any], writer: SheetWriter, addresses: dict[str, Any]) -> None:
@@ -93,7 +110,7 @@ def render_block(sheet: lay.Sheet, block, values: dict[str, Any], writer: SheetW
             row = block.row + offset
             writer.write_cells(name, row, block.column, [[item.label]], None, False)
             if item.key in formulas:
-                value = formulas[item.key].format_map(addresses)
+                value = Formula(formulas[item.key].format_map(addresses))
             else:
                 value = _safe(values.get(item.key))
             writer.write_cells(name, row, block.column + 1, [[value]], item.number_format, False)
@@ -108,7 +125,7 @@ def render_block(sheet: lay.Sheet, block, values: dict[str, Any], writer: SheetW
         col = block.column + index
         header = f"{column.header} [{column.unit}]" if column.unit else column.header
         writer.write_cells(name, header_row, col, [[header]], None, True)
-        writer.set_column_width(name, col, column.width)
+        writer.set_column_width(name, col, printing.column_width(column))
         if block.rows == 0:
             continue
         if isinstance(block, lay.FormulaTable):
@@ -117,13 +134,14 @@ def render_block(sheet: lay.Sheet, block, values: dict[str, Any], writer: SheetW
             cells = []
             for row in range(first, first + block.rows):
                 template = column.first if row == first else column.step
-                cells.append([template.format_map({**addresses, **letters, "r": row, "q": row - 1, "rr": row + offset})])
+                cells.append([Formula(template.format_map({**addresses, **letters, "r": row, "q": row - 1, "rr": row + offset}))])
         else:
             data = values.get(column.key, [])
             if len(data) != block.rows:
                 raise ValueError(f"block {block.key!r} column {column.key!r}: {len(data)} values for {block.rows} rows")
             cells = [[_safe(v)] for v in data]
-        writer.write_cells(name, first, col, cells, column.number_format, False)
+        writer.write_cells(name, first, col, cells, printing.number_format(column.number_format, data) if not
+                           isinstance(block, lay.FormulaTable) else column.number_format, False)  # fmt: skip
 
 
 def block_cells(sheet: lay.Sheet, block) -> list[tuple[int, int]]:
@@ -167,19 +185,26 @@ def _define_names(sheet: lay.Sheet, block, writer: SheetWriter) -> None:
             writer.define_name(f"{lay.NAME_PREFIX}{block.key}_{column.key}", sheet.name, reference)
 
 
-def _column_range(sheet: str, block, key: str) -> SeriesRange:
+def _column_range(sheet: str, block, key: str, skip: int = 0) -> SeriesRange:
     index = next(i for i, c in enumerate(block.columns) if c.key == key)
     first = block.row + 2
-    return SeriesRange(sheet, block.column + index, first, first + max(block.rows, 1) - 1)
+    last = first + max(block.rows, 1) - 1
+    return SeriesRange(sheet, block.column + index, min(first + skip, last), last)
 
 
 def _safe(value: Any) -> Any:
-    """Empty text becomes a blank cell; text starting with '=' gets a leading space (text, not a formula)."""
+    """Empty text becomes a blank cell; text starting with '=' gets a leading space, so even a reader
+    that takes '=' for a formula sees text; control characters the xlsx format cannot hold become spaces."""
     if value == "":
         return None
-    if isinstance(value, str) and value.startswith("="):
-        return " " + value
+    if isinstance(value, str) and not isinstance(value, Formula):
+        cleaned = _CONTROL.sub(" ", value)
+        return " " + cleaned if cleaned.startswith("=") else cleaned
     return value
+
+
+#: Characters XML 1.0 (so xlsx) cannot hold: C0 controls other than tab, line feed and carriage return.
+_CONTROL = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f]")
 
 
 class CellRecorder:
@@ -187,7 +212,8 @@ class CellRecorder:
 
     ``cells[(sheet, row, column)]`` is the value or formula text,
     ``formats[...]`` its number format, ``names[name]`` the ``sheet!reference``
-    and ``charts`` a list of (sheet, chart key, x address, [(title, y address)]).
+    ``charts`` a list of (sheet, chart key, x address, [(title, y address)])
+    and ``pages[sheet]`` its `layout.PageSetup`.
     """
 
     def __init__(self) -> None:
@@ -197,6 +223,7 @@ class CellRecorder:
         self.names: dict[str, str] = {}
         self.widths: dict[tuple[str, int], float] = {}
         self.charts: list[tuple[str, str, str, list[tuple[str, str]]]] = []
+        self.pages: dict[str, lay.PageSetup] = {}
 
     def add_sheet(self, name: str) -> None:
         self.sheets.append(name)
@@ -216,3 +243,6 @@ class CellRecorder:
 
     def add_chart(self, sheet, chart, x, series) -> None:
         self.charts.append((sheet, chart.key, x.address(), [(title, y.address()) for title, y in series]))
+
+    def set_page(self, sheet, page) -> None:
+        self.pages[sheet] = page

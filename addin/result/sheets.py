@@ -29,6 +29,8 @@ from .layout import (
 
 __all__ = [
     "AUDIT",
+    "DUCTILITY",
+    "EXACT_TOLERANCE",
     "CHART_POINTS",
     "MEASURES",
     "MEASURE_FIELDS",
@@ -87,6 +89,8 @@ MEASURE_FIELDS: tuple[tuple[str, str, str, str, str], ...] = (
     ("predominant_period", "Predominant period Tp", "time", FIXED4,
      "period of the largest 5 %-damped PSA among 160 periods, 0.02-5 s"),
 )  # fmt: skip
+#: The sheet of the constant-ductility spectrum (present when targets and periods are given).
+DUCTILITY = "Ductility"
 #: First data row of the Record table; the Verification steps start on the same row.
 RECORD_FIRST_ROW = 9
 #: Title of the Peaks sheet's table of yielding oscillators.
@@ -94,6 +98,10 @@ YIELDING_TITLE = "Yielding oscillators (bilinear hysteresis; strength fy = F_el 
 #: Relative tolerance of the Verification sheet: the same recurrence evaluated in another
 #: order of floating-point operations; 2000 steps of a damped oscillator lose far fewer digits.
 VERIFY_TOLERANCE = 1e-9
+#: Relative difference of a spectrum's PSA from the exact piecewise-linear solution
+#: (Nigam & Jennings 1969) above which the Spectra sheet flags the ordinate: the 1 %
+#: the yielding results are held to (``core.defaults.DEFAULT_YIELDING_STEP_RATIO``).
+EXACT_TOLERANCE = 0.01
 
 
 def damping_label(damping: float) -> str:
@@ -114,6 +122,10 @@ def result_layout(
     n_frequencies: int = 0,
     n_chart_frequencies: int = 0,
     n_steps: int = 0,
+    n_findings: int = 1,
+    n_rigid: int = 0,
+    ductilities: tuple[float, ...] = (),
+    n_ductility_periods: int = 0,
 ) -> WorkbookLayout:
     """The result workbook's layout for the given sizes and units.
 
@@ -139,14 +151,24 @@ def result_layout(
         frequencies) and of its chart table (at most `CHART_POINTS`).
     n_steps : int, default 0
         Processing steps listed on the Audit sheet.
+    ductilities, n_ductility_periods : tuple of float, int
+        Targets and periods of the Ductility sheet's constant-ductility
+        spectrum; the sheet is left out when either is empty.
+    n_rigid : int, default 0
+        Leading spectrum periods equal to 0 (rigid: PSA = PGA): kept in the
+        table, left out of the charts (a logarithmic axis cannot show 0).
+    n_findings : int, default 1
+        Rows of the Summary's plausibility notes (``core.plausibility``; one
+        row saying "none" when there is nothing to note).
     """
     velocity_unit = f"{length_unit}/s"
     return WorkbookLayout(
         (
-            _summary(dampings, unit, length_unit, velocity_unit, n_yielding),
+            _summary(dampings, unit, length_unit, velocity_unit, n_yielding, n_findings),
             _record(n_samples, unit, length_unit, velocity_unit, n_raw),
-            _spectra(n_periods, dampings, unit, length_unit, velocity_unit),
+            _spectra(n_periods, dampings, unit, length_unit, velocity_unit, n_rigid),
             _peaks(n_oscillators, unit, length_unit, velocity_unit, n_yielding),
+            *((_ductility(ductilities, n_ductility_periods),) if ductilities and n_ductility_periods else ()),
             _measures(n_samples, unit, length_unit, velocity_unit, n_raw > 0, n_frequencies, n_chart_frequencies),
             _verification(n_samples),
             _audit(n_steps),
@@ -154,7 +176,7 @@ def result_layout(
     )
 
 
-def _summary(dampings, unit, length_unit, velocity_unit, n_yielding) -> Sheet:
+def _summary(dampings, unit, length_unit, velocity_unit, n_yielding, n_findings) -> Sheet:
     project = Fields(
         "project", "Scenario and project", 4, 1,
         (
@@ -164,6 +186,10 @@ def _summary(dampings, unit, length_unit, velocity_unit, n_yielding) -> Sheet:
             Field("engineer", "Prepared by"),
             Field("scenario", "Scenario"),
         ),
+    )  # fmt: skip
+    review = Fields(
+        "review", "Calculation record", 4, 5,
+        (Field("project_number", "Project number"), Field("checker", "Checked by"), Field("date", "Date")),
     )  # fmt: skip
     record = Fields(
         "record_summary", "Record", 11, 1,
@@ -196,7 +222,7 @@ def _summary(dampings, unit, length_unit, velocity_unit, n_yielding) -> Sheet:
         (Field("check_status", "Verification sheet (formulas replaying the recurrence)"),),
         formulas=(("check_status", f"={VERIFICATION}!{{verification_overall}}"),),
     )  # fmt: skip
-    blocks: tuple[Fields | Table | FormulaTable, ...] = (project, record, key, check)
+    blocks: tuple[Fields | Table | FormulaTable, ...] = (project, review, record, key, check)
     if n_yielding:
         yielding = Fields(
             "yielding_summary", f"Yielding oscillators ({PEAKS} sheet)", 27 + len(dampings), 1,
@@ -210,6 +236,14 @@ def _summary(dampings, unit, length_unit, velocity_unit, n_yielding) -> Sheet:
             checked=True,
         )  # fmt: skip
         blocks += (yielding,)
+    findings = Table(
+        "findings", "Plausibility notes (warnings, not errors; groundstep.core.plausibility)",
+        27 + len(dampings) + (7 if n_yielding else 0), 1,
+        (Column("check", "Check", "", TEXT, 22.0), Column("finding", "Note", "", TEXT, 100.0)),
+        max(n_findings, 1),
+        checked=True,
+    )  # fmt: skip
+    blocks += (findings,)
     return Sheet(SUMMARY, "groundstep result workbook", blocks, note=CAUTION)
 
 
@@ -325,7 +359,7 @@ def _measures(n_samples, unit, length_unit, velocity_unit, processed, n_frequenc
     return Sheet(MEASURES, "Ground-motion measures", blocks, charts, note=note)
 
 
-def _spectra(n_periods, dampings, unit, length_unit, velocity_unit) -> Sheet:
+def _spectra(n_periods, dampings, unit, length_unit, velocity_unit, n_rigid=0) -> Sheet:
     columns = [Column("period", "Period", "s", FIXED4, 10.0)]
     for index, damping in enumerate(dampings):
         label = damping_label(damping)
@@ -334,6 +368,8 @@ def _spectra(n_periods, dampings, unit, length_unit, velocity_unit) -> Sheet:
             Column(f"psv_{index}", f"PSV {label}", velocity_unit, SCIENTIFIC, 17.0),
             Column(f"psa_{index}", f"PSA {label}", unit, SCIENTIFIC, 17.0),
             Column(f"sa_{index}", f"SA {label}", unit, SCIENTIFIC, 17.0),
+            Column(f"exact_{index}", f"PSA vs exact (Nigam & Jennings 1969) {label}", "-", SCIENTIFIC, 17.0),
+            Column(f"exact_flag_{index}", f"Above {EXACT_TOLERANCE:.0%}?", "", TEXT, 10.0),
         ]
     table = Table("spectra_table", "Elastic response spectra", 3, 1, tuple(columns), n_periods, checked=True)
     right = len(columns) + 2
@@ -341,7 +377,7 @@ def _spectra(n_periods, dampings, unit, length_unit, velocity_unit) -> Sheet:
         Chart(
             f"{quantity}_chart", title, "spectra_table", "period",
             tuple((f"{quantity}_{i}", damping_label(d)) for i, d in enumerate(dampings)),
-            "Period [s] (logarithmic)", axis, 3 + offset, right, log_x=True,
+            "Period [s] (logarithmic)", axis, 3 + offset, right, log_x=True, skip_rows=n_rigid,
         )
         for quantity, title, axis, offset in (
             ("psa", "Pseudo-spectral acceleration", f"PSA [{unit}]", 0),
@@ -349,6 +385,28 @@ def _spectra(n_periods, dampings, unit, length_unit, velocity_unit) -> Sheet:
         )
     )  # fmt: skip
     return Sheet(SPECTRA, "Elastic response spectra", (table,), charts)
+
+
+def _ductility(ductilities, n_periods) -> Sheet:
+    settings = Fields(
+        "ductility_settings", "Constant-ductility spectrum (the template's Yielding sheet)", 3, 1,
+        (
+            Field("ductilities", "Target ductilities μ", "", TEXT),
+            Field("yield_damping", "Damping ratio ζ", "", FIXED4),
+            Field("ductility_method", "Hysteresis and method", "", TEXT),
+        ),
+    )  # fmt: skip
+    columns = [Column("period", "Period", "s", FIXED4, 10.0)]
+    for index, target in enumerate(ductilities):
+        columns += [
+            Column(f"cy_{index}", f"Yield coefficient Cy, μ = {target:g}", "-", SCIENTIFIC, 16.0),
+            Column(f"r_{index}", f"Reduction factor R, μ = {target:g}", "-", SCIENTIFIC, 16.0),
+        ]
+    table = Table(
+        "ductility_table", "Largest strength reaching each target ductility (Cy = fy / (m·g), R = F_el / fy)",
+        8, 1, tuple(columns), n_periods, checked=True,
+    )  # fmt: skip
+    return Sheet(DUCTILITY, "Constant-ductility spectrum", (settings, table))
 
 
 def _peaks(n_oscillators, unit, length_unit, velocity_unit, n_yielding) -> Sheet:
@@ -411,6 +469,7 @@ def _verification(n_samples) -> Sheet:
             ("verification_dt", f"={RECORD}!{{dt}}"),
             ("verification_factor", f"={RECORD}!{{unit_factor}}"),
         ),
+        checked=True,  # a changed β, γ, tolerance or formula is a mismatch (the period and damping are read back)
     )  # fmt: skip
     constants = Fields(
         "verification_constants", "Newmark constants (Newmark 1959)", 12, 1,
@@ -488,8 +547,14 @@ def _audit(n_steps: int) -> Sheet:
             Field("python_version", "Python", "", TEXT),
             Field("library_versions", "numpy / scipy / numba / openpyxl", "", TEXT),
             Field("platform", "Platform", "", TEXT),
-            Field("record_sha256", "Record SHA-256 (samples as read, on the Record sheet; unit; dt)", "", TEXT),
+            Field(
+                "record_sha256",
+                "Record SHA-256 (samples as read, on the Record sheet, rounded to 15 significant digits as "
+                "spreadsheets store them; unit; dt). verify compares numbers to 1e-9 relative",
+                "", TEXT,
+            ),
             Field("record_source", "Record source", "", TEXT),
+            Field("reviewed", "Project number / checked by / date", "", TEXT),
             Field("caution", "Caution", "", TEXT),
         ),
     )  # fmt: skip

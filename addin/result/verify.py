@@ -24,17 +24,18 @@ from __future__ import annotations
 import ast
 import math
 import os
-import zipfile
 from dataclasses import dataclass, replace
 from typing import Any
 
 import numpy as np
 
 from groundstep.core import ProcessingStep, Record, collect_warnings, replay_history
+from groundstep.core.defaults import DEFAULT_DAMPING
 
 from . import layout as lay
 from . import sheets
 from .content import PROJECT_KEYS, Oscillator, ReportSettings, build_report
+from .guard import UnsafeWorkbook, check_package
 from .render import CellRecorder, block_cells, column_letter, formula_fields, render_block
 
 __all__ = ["BlockCheck", "NotAResultWorkbook", "RELATIVE_TOLERANCE", "verify_workbook"]
@@ -72,7 +73,8 @@ def verify_workbook(path: str | os.PathLike[str]) -> list[BlockCheck]:
     ----------
     path : path-like
         A workbook written by ``groundstep`` (``demo``, ``fill`` or
-        ``spectrum --format xlsx``).
+        ``spectrum --format xlsx``); a suite workbook (``groundstep
+        suite``) is handed to ``suite_verify.verify_suite``.
 
     Returns
     -------
@@ -91,11 +93,21 @@ def verify_workbook(path: str | os.PathLike[str]) -> list[BlockCheck]:
     import openpyxl
 
     try:
-        book = openpyxl.load_workbook(path, data_only=False)
-    except (OSError, zipfile.BadZipFile, KeyError, ValueError) as exc:
+        check_package(path)
+    except UnsafeWorkbook as exc:
+        raise NotAResultWorkbook(str(exc)) from None
+    try:
+        book = openpyxl.load_workbook(path, data_only=False, keep_vba=False)
+    except Exception as exc:  # noqa: BLE001 - openpyxl and the XML parser raise many kinds for a bad package
         raise NotAResultWorkbook(f"{os.fspath(path)!r} cannot be opened as an .xlsx workbook ({exc})") from None
     reader = _Names(book)
     mark = reader.value("format", required=False)
+    from .suite_sheets import SUITE_FORMAT_ID  # the suite workbook's own format (groundstep suite)
+
+    if mark == SUITE_FORMAT_ID:
+        from .suite_verify import verify_suite
+
+        return verify_suite(book, path)
     if mark != lay.FORMAT_ID:
         raise NotAResultWorkbook(
             f"{os.fspath(path)!r} is not a groundstep result workbook (no {lay.NAME_PREFIX}format "
@@ -207,9 +219,24 @@ def _read_inputs(names: _Names) -> tuple[Record, ReportSettings, dict[str, str]]
         verification_damping=names.number("verification_damping"),
         project=tuple((key, names.value(key) or "") for key in PROJECT_KEYS),
         hardening=float(hardening),
+        ductilities=_listed_numbers(names, "ductilities"),
+        yield_periods=tuple(names.numbers("ductility_table_period", required=False)),
+        yield_damping=names.number("yield_damping") if names.value("yield_damping", required=False) is not None
+        else DEFAULT_DAMPING,
     )
     audit = {key: str(names.value(key, required=False) or "") for key in ("record_sha256", "command", "record_source")}
     return record, settings, audit
+
+
+def _listed_numbers(names: _Names, key: str) -> tuple[float, ...]:
+    """Numbers listed in one text cell (``2.0, 4.0``); empty when the workbook lacks the cell."""
+    text = names.value(key, required=False)
+    if text in (None, ""):
+        return ()
+    try:
+        return tuple(float(part) for part in str(text).split(","))
+    except ValueError:
+        raise NotAResultWorkbook(f"cell {lay.NAME_PREFIX}{key} should list numbers, holds {text!r}") from None
 
 
 def _read_steps(names: _Names) -> tuple[ProcessingStep, ...]:

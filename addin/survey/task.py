@@ -30,6 +30,7 @@ from groundstep.core import (
     elastic_spectrum,
     ground_motion_measures,
 )
+from groundstep.core.defaults import DEFAULT_YIELDING_STEP_RATIO
 
 from .plan import RecordEntry
 from .settings import SurveySettings
@@ -272,7 +273,7 @@ def _component(component: str, record: Record, settings: SurveySettings) -> dict
     if settings.ductilities:
         ductility = ductility_spectrum(
             record, settings.periods, settings.ductilities, settings.ductility_damping, settings.ductility_method,
-            hardening=settings.hardening, max_step_ratio=settings.max_step_ratio,
+            hardening=settings.hardening, max_step_ratio=_yielding_ratio(settings.max_step_ratio),
         )  # fmt: skip
         out["ductility"] = {
             "damping": ductility.damping,
@@ -285,6 +286,11 @@ def _component(component: str, record: Record, settings: SurveySettings) -> dict
     if settings.measures:
         out["measures"] = ground_motion_measures(record).to_dict()
     return out
+
+
+def _yielding_ratio(ratio: float | None) -> float | None:
+    """The survey's step ratio, at most the yielding default (1 % accuracy, ``core.defaults``); None stays off."""
+    return None if ratio is None else min(float(ratio), DEFAULT_YIELDING_STEP_RATIO)
 
 
 def _json_ready(value: Any) -> Any:

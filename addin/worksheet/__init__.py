@@ -5,4 +5,4 @@ Importing this package declares every ``STEP_`` function, so
 the Calc extension builder, the README table).
 """
 
-from . import functions, records  # noqa: F401 - declaring the functions fills registry.FUNCTIONS
+from . import functions, records, suite  # noqa: F401 - declaring the functions fills registry.FUNCTIONS

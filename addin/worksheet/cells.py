@@ -160,7 +160,7 @@ def unit(value: Any, what: str, table: dict[str, float], default: Any = _REQUIRE
         return normalise_unit(name, table, what)
     except ValueError:
         accepted = ", ".join(table)
-        raise CellError(f"{what} {name!r} is not a known unit; use one of {accepted}") from None
+        raise CellError(f"{what} {excerpt(name)} is not a known unit; use one of {accepted}") from None
 
 
 def flag(value: Any, what: str, default: bool) -> bool:
@@ -170,7 +170,7 @@ def flag(value: Any, what: str, default: bool) -> bool:
         return default
     if isinstance(cell, (bool, np.bool_)):
         return bool(cell)
-    if isinstance(cell, Real) and float(cell) in (0.0, 1.0):
+    if isinstance(cell, Real) and cell in (0, 1):  # no float(): an integer cell may exceed float64
         return bool(cell)
     if isinstance(cell, str) and cell.strip().lower() in {"true", "false", "yes", "no"}:
         return cell.strip().lower() in {"true", "yes"}
@@ -222,8 +222,13 @@ def _values(value: Any, what: str) -> tuple[NDArray[np.float64], _Line, int]:
     while stop > start and _is_blank(cells[stop - 1]):
         stop -= 1
     interior = cells[start:stop]
-    if set(map(type, interior)) <= {float, int}:  # the usual case, done by numpy
-        found = np.array(interior, dtype=np.float64)
+    fast = set(map(type, interior)) <= {float, int}  # the usual case, done by numpy
+    if fast:
+        try:
+            found = np.array(interior, dtype=np.float64)
+        except OverflowError:  # an integer beyond float64: the cell-by-cell path names it
+            fast = False
+    if fast:
         bad = np.flatnonzero(~np.isfinite(found))
         if bad.size:
             raise CellError(f"{line.position(start + int(bad[0]))} of {what} holds {float(found[bad[0]])!r}, not a finite number")
@@ -304,7 +309,10 @@ def _number(cell: Any) -> float:
     if isinstance(cell, (bool, np.bool_)):
         raise _Reason(f"holds {str(bool(cell)).upper()}, a Boolean, not a number")
     if isinstance(cell, (Real, np.integer, np.floating)):
-        result = float(cell)
+        try:
+            result = float(cell)
+        except OverflowError:  # an integer beyond float64 (about 1.8e308)
+            raise _Reason(f"holds an integer of {len(str(abs(cell)))} digits, too large for a number") from None
     elif cell is None:
         raise _Reason("is blank")
     elif isinstance(cell, str):
@@ -315,12 +323,12 @@ def _number(cell: Any) -> float:
             raise _Reason(f"holds the error {stripped}")
         if _DECIMAL_COMMA.match(stripped):
             raise _Reason(
-                f"holds the text {stripped!r}: write the number with a decimal point ({stripped.replace(',', '.')})"
+                f"holds the text {excerpt(stripped)}: write the number with a decimal point ({stripped.replace(',', '.')})"
             )
         try:
             result = _text_number(stripped)
         except ValueError:
-            raise _Reason(f"holds the text {stripped!r}, not a number") from None
+            raise _Reason(f"holds the text {excerpt(stripped)}, not a number") from None
     elif isinstance(cell, (_dt.date, _dt.time, _dt.timedelta)):
         raise _Reason(f"holds a date or time ({cell}), not a number")
     else:
@@ -348,11 +356,24 @@ def _check_damping(ratio: float, what: str, sep: str) -> float:
     return ratio
 
 
+#: Longest excerpt of a cell's text quoted in a message [characters].
+EXCERPT_LENGTH = 60
+
+
+def excerpt(text: str) -> str:
+    """`text` quoted, cut to EXCERPT_LENGTH characters with its full length said."""
+    if len(text) <= EXCERPT_LENGTH:
+        return repr(text)
+    return f"{text[:EXCERPT_LENGTH]!r}... ({len(text)} characters)"
+
+
 def _shown(cell: Any) -> str:
     if isinstance(cell, (bool, np.bool_)):
         return f"{str(bool(cell)).upper()} (a Boolean)"
     if isinstance(cell, str):
-        return repr(cell)
+        return excerpt(cell)
+    if isinstance(cell, int) and abs(cell) > 10**300:
+        return f"an integer of {len(str(abs(cell)))} digits"
     if isinstance(cell, Real):
         return f"{float(cell):g}"
     return f"{type(cell).__name__} {cell!r:.40}"

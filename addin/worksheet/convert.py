@@ -108,7 +108,7 @@ def choice(value: Cell, quantities: dict[str, Quantity], what: str = "the quanti
     for name, quantity in quantities.items():
         if _plain(name) == spelled:
             return quantity
-    raise CellError(f"{what} {value!r} is not one of: {', '.join(quantities)}")
+    raise CellError(f"{what} {cells.excerpt(str(value))} is not one of: {', '.join(quantities)}")
 
 
 def method(value: Cell) -> Method:
@@ -150,7 +150,7 @@ def units(record_unit: str, accel_unit_out: Cell, length_unit_out: Cell) -> Outp
             length = cells.unit(spelled, "the output length unit", VELOCITY_UNITS)[:-2]
         except CellError:
             raise CellError(
-                f"the output length unit {spelled!r} is not a known unit; use one of {', '.join(LENGTH_UNITS)}"
+                f"the output length unit {cells.excerpt(spelled)} is not a known unit; use one of {', '.join(LENGTH_UNITS)}"
             ) from None
     return output_units(record_unit, acceleration=accel, length=length)
 

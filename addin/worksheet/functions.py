@@ -42,6 +42,7 @@ from groundstep.core import (
 )
 from groundstep.core.defaults import DEFAULT_DAMPING, DEFAULT_STEP_RATIO
 from groundstep.core.methods import substep_counts
+from groundstep.core.plausibility import check_record
 from groundstep.core.units import ACCELERATION_UNITS
 
 from . import cells, convert
@@ -61,6 +62,7 @@ __all__ = [
     "CAUTION",
     "ERROR_PREFIX",
     "STEP_ABOUT",
+    "STEP_CHECK",
     "STEP_DUCTILITY",
     "STEP_DUCTILITY_SPECTRUM",
     "STEP_HISTORY",
@@ -218,6 +220,14 @@ def STEP_DUCTILITY_SPECTRUM(
     missing = "n/a" if chosen.attribute == "achieved_ductility" else "not reached"
     values = convert.to_unit(getattr(spectrum, chosen.attribute), chosen.kind, out).T
     return convert.table(values, grid[0], grid[1], corner, _headers(headers), missing)
+
+
+@worksheet_function(spills=True, help={"periods": "check_periods"})
+def STEP_CHECK(accel: Cell, dt: Cell, unit: Cell, periods: Cell = None) -> Any:
+    """Plausibility notes of a record (time step, PGA for the unit, periods, drift): warnings, not errors (spills)."""
+    record, _ = convert.record(accel, dt, unit)
+    grid = None if periods is None or periods == "" else cells.periods(periods, "the periods range")
+    return [[f.check, f.message] for f in check_record(record, grid)] or [["none", "no plausibility notes"]]
 
 
 @worksheet_function(spills=True, help={"dt": "about_dt", "unit": "about_unit", "period": "about_period"})

@@ -1,7 +1,7 @@
 """The one table of worksheet functions: names, arguments, help texts and the quantities they return.
 
 Every ``STEP_`` function is declared once, with `worksheet_function`, in
-``functions.py`` or ``records.py``. The decorator records it in `FUNCTIONS` (name, summary,
+``functions.py``, ``records.py`` or ``suite.py``. The decorator records it in `FUNCTIONS` (name, summary,
 arguments with their help text, whether it spills) and applies the xlwings
 decorators from that same record, so the help Excel shows, the README table
 and any other spreadsheet binding are generated from one place.
@@ -15,14 +15,17 @@ from __future__ import annotations
 
 import functools
 import inspect
+import math
 from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Any, NamedTuple
 
+import numpy as np
 import xlwings as xw
 
 from groundstep.addin.common import ERROR_PREFIX
 from groundstep.core import ConvergenceError
+from groundstep.core.budget import DEFAULT_MAX_WORK, LimitError, work_budget
 
 from .cells import CellError
 
@@ -34,9 +37,12 @@ __all__ = [
     "FUNCTIONS",
     "MEASURE_QUANTITIES",
     "PEAK_QUANTITIES",
+    "ROTD_CHOICES",
+    "SCALING_RULE_NAMES",
     "SPECTRUM_QUANTITIES",
     "Argument",
     "Quantity",
+    "WORKSHEET_MAX_WORK",
     "SheetFunction",
     "worksheet_function",
 ]
@@ -58,6 +64,7 @@ ARGUMENT_HELP: dict[str, str] = {
     "method": "average (default), linear or exact; or a two-cell range holding Newmark beta and gamma.",
     "accel_unit_out": "Unit of returned accelerations: g, m/s2, cm/s2, gal, mm/s2, in/s2 or ft/s2. Blank: the record's unit.",
     "length_unit_out": "Length unit of returned displacements and velocities (m, cm, mm, in, ft). Blank: matches the record's unit.",
+    "check_periods": "Periods T [s] the record will be used for (optional): checked against the record's length and 2·dt.",
     "headers": "TRUE adds a header row (and for tables a header column) with names and units. Default FALSE.",
     "yield_coefficient": "Yield strength over weight, Fy/(m g). Give this or reduction_factor.",
     "reduction_factor": "Strength reduction factor R = elastic strength / yield strength. Give this or yield_coefficient.",
@@ -88,10 +95,32 @@ ARGUMENT_HELP: dict[str, str] = {
     "filter_order": "Order of one pass of the Butterworth filter, even and >= 2 (run forward and back). Blank: 4.",
     "taper": "Fraction of the record inside the cosine taper before filtering, half at each end. Blank: 0.05.",
     "keep_pads": "TRUE (default) keeps the zero pads added before filtering, so the result is longer than the record.",
+    # design spectra, orientation-independent spectra and suite scaling (suite.py)
+    "design_periods": "Periods T [s]: one column or row of cells (>= 0; > 0 for a table target).",
+    "standard": "ASCE7 (ASCE/SEI 7-16 §11.4.6), EN1998 (EN 1998-1:2004 §3.2.2.2) or table (a target of your own).",
+    "parameters": (
+        "Two columns: name and value, e.g. sds 1.0 / sd1 0.6 / tl 8 (ASCE7) or ag 0.25 / ground_type C / "
+        "spectrum_type 1 / importance_factor 1 / damping 0.05 (EN1998); for table: period [s] and Sa [g] rows."
+    ),
+    "design_accel_unit_out": "Unit of the returned spectral accelerations (g, m/s2, cm/s2, ...). Blank: g.",
+    "accel_x": "First horizontal component: one column of cells (same time step and length as the second).",
+    "accel_y": "Second horizontal component, at right angles to the first: one column of cells.",
+    "percentile": "RotD percentile 0-100 (50 default, 100 the maximum direction), or GM (geometric mean); a row spills columns.",
+    "record_spectra": "Spectra of the records: one column per record, one row per period (text headers above are skipped).",
+    "target": "Target spectrum at the same periods and in the same unit: one column.",
+    "rule": "common (default: one factor for the suite), least squares (one per record, log fit) or both.",
+    "range_low": "Shortest period of the range the rule applies over [s]. Blank with a preset: 0.2 T.",
+    "range_high": "Longest period of the range [s]. Blank with a preset: 2.0 T.",
+    "fraction": "Least suite mean / target required over the range, in (0, 1]. Blank: 0.9 (the preset's).",
+    "preset": "Optional: ASCE7 (ASCE/SEI 7-16 §16.2.3.2) or EN1998 (EN 1998-1:2004 §3.2.3.1.2), from memory of the clauses.",
+    "structure_period": "Fundamental period T of the structure [s]; with a preset it sets the range 0.2 T to 2.0 T.",
 }
 
 #: Arguments that take a range of cells (passed as a two-dimensional list, error cells as text).
-RANGE_ARGUMENTS = frozenset({"accel", "periods", "dampings", "ductilities", "measure"})
+RANGE_ARGUMENTS = frozenset(
+    {"accel", "periods", "dampings", "ductilities", "measure", "parameters", "accel_x", "accel_y", "percentile",
+     "record_spectra", "target"}
+)  # fmt: skip
 
 
 class Quantity(NamedTuple):
@@ -140,6 +169,17 @@ DUCTILITY_SPECTRUM_QUANTITIES: dict[str, Quantity] = {
     "peak displacement": Quantity("peak displacement", "peak_displacement", "length"),
     "achieved ductility": Quantity("achieved ductility", "achieved_ductility", "ratio"),
 }
+
+# percentile cell as typed (besides a number 0-100) -> attribute of groundstep.core.RotDSpectrum
+ROTD_CHOICES: dict[str, Quantity] = {
+    "GM": Quantity("geometric mean", "geometric_mean", "acceleration"),
+    "PSA x": Quantity("PSA x", "psa_x", "acceleration"),
+    "PSA y": Quantity("PSA y", "psa_y", "acceleration"),
+    "angle": Quantity("direction of RotD100 [degrees]", "angle_rotd100", "ratio"),
+}
+
+# rule as typed (matched ignoring case, "_" and "-") -> rule of groundstep.core.scale_suite
+SCALING_RULE_NAMES: dict[str, str] = {"common": "common", "least squares": "least_squares", "both": "both"}
 
 # measure as typed -> Quantity; the attribute is the key of groundstep.core.ground_motion_measures,
 # which also matches ("pgv_time" is "PGV time" once "_" and case are ignored)
@@ -241,15 +281,61 @@ def worksheet_function(
 
 
 def _guard(function: Callable[..., Any]) -> Callable[..., Any]:
-    """Return failures as one cell of text starting with ERROR_PREFIX."""
+    """Return failures, and results that are not finite numbers, as one cell of text starting with ERROR_PREFIX.
+
+    The call runs under the worksheet work budget (`WORKSHEET_MAX_WORK`) with
+    numpy's floating-point errors raised rather than warned, so an overflow
+    anywhere becomes a message naming the function instead of a warning
+    printed to the console.
+    """
+    name = function.__name__
 
     @functools.wraps(function)
     def guarded(*args: Any) -> Any:
         try:
-            return function(*args)
-        except (CellError, ValueError, TypeError, ConvergenceError) as exc:
+            with work_budget(WORKSHEET_MAX_WORK), np.errstate(over="raise", divide="raise", invalid="raise", under="ignore"):
+                result = function(*args)
+        except LimitError as exc:
+            return f"{ERROR_PREFIX}{exc.fact}; {exc.cell_advice or _CELL_BUDGET_ADVICE}"
+        except ConvergenceError as exc:
+            return f"{ERROR_PREFIX}{exc.fact}" + (f"; {exc.cell_advice}" if exc.cell_advice else "")
+        except (CellError, ValueError, TypeError) as exc:
             return f"{ERROR_PREFIX}{exc}"
+        except (OverflowError, ZeroDivisionError, FloatingPointError) as exc:
+            return (
+                f"{ERROR_PREFIX}{name}: the arguments lead outside the range of floating-point numbers ({exc}); "
+                "check the units and magnitudes of the cells (time step in seconds, record unit)"
+            )
         except Exception as exc:  # noqa: BLE001 - a cell must never see a traceback
             return f"{ERROR_PREFIX}unexpected {type(exc).__name__}: {exc} (please report this)"
+        return _finite(result, name)
 
     return guarded
+
+
+#: Largest cost one worksheet call may take [oscillator-sub-steps]: a tenth of the
+#: core's default, a few seconds of work, so that one cell never freezes a sheet.
+WORKSHEET_MAX_WORK = DEFAULT_MAX_WORK / 10.0
+
+_CELL_BUDGET_ADVICE = (
+    "a single cell is limited to this; shorten the record range, use fewer periods, "
+    "or run the groundstep command line (fill) for a request this large"
+)
+
+
+def _finite(result: Any, name: str) -> Any:
+    """`result` unchanged when every number in it is finite; else a message naming where."""
+    if isinstance(result, float):
+        if math.isfinite(result):
+            return result
+        return f"{ERROR_PREFIX}{name} gave {result!r}, not a finite number; check the magnitudes of the cells"
+    if isinstance(result, list):
+        for i, line in enumerate(result):
+            for j, value in enumerate(line if isinstance(line, list) else [line]):
+                if isinstance(value, float) and not math.isfinite(value):
+                    where = f"row {i + 1}, column {j + 1}" if isinstance(line, list) else f"entry {i + 1}"
+                    return (
+                        f"{ERROR_PREFIX}{name} gave {value!r} at {where} of its table, not a finite number; "
+                        "check the magnitudes of the cells"
+                    )
+    return result
