@@ -116,7 +116,7 @@ def main() -> None:
     edited[1 + SAMPLES // 2] = [float(edited[1 + SAMPLES // 2][0]) + 1e-6]
     print(f"groundstep {__version__}, Python {platform.python_version()}, {platform.machine()}")
     STEP_PEAK(cells, DT, "g", 1.0, 0.05, "SD")  # load the compiled kernels before timing
-    linear_response(Record([0.0, 1.0, 0.0], DT), 1.0)
+    linear_response(Record([0.0, 1.0, 0.0], DT, "m/s2"), 1.0)
 
     figures = {"former": [], "current": [], "floor": []}
     for _ in range(40):  # alternated, each on a fresh copy: the float objects shared, as in xlwings' conversion
