@@ -3,7 +3,7 @@
 The Calc template (``groundstep templates``) is filled with an invented
 2,000-sample record and opened in a private headless LibreOffice with the
 extension of this checkout installed. Every STEP_ cell receives the whole
-40,001-row record range, as Calc passes it.
+record range (``package.names.RECORD_ROWS`` + 1 rows), as Calc passes it.
 
 * first recalc:     ``calculateAll`` right after opening (caches empty)
 * unchanged recalc: ``calculateAll`` again (every call a cache hit): the
@@ -29,6 +29,7 @@ from groundstep.addin.calc.extension import build_extension
 from groundstep.addin.calc.office import Office
 from groundstep.addin.calc.template import build_calc_package
 from groundstep.addin.functions import STEP_DUCTILITY, STEP_DUCTILITY_SPECTRUM, STEP_PEAK, STEP_SPECTRUM
+from groundstep.addin.package.names import RECORD_ROWS
 from groundstep.addin.worksheet import cache
 from groundstep.core.synthetic import synthetic_record
 
@@ -76,7 +77,7 @@ def main() -> None:
                 started = time.perf_counter()
                 document.calculateAll()
                 figures["edit"] = min(figures.get("edit", 1e9), time.perf_counter() - started)
-            held = document.Sheets.getByName("Record").getCellRangeByName("A1:A40001").getDataArray()
+            held = document.Sheets.getByName("Record").getCellRangeByName(f"A1:A{RECORD_ROWS + 1}").getDataArray()
             peaks = document.Sheets.getByName("Peaks").getCellRangeByName("A7:B18").getDataArray()
             grids = tuple(
                 document.Sheets.getByName(sheet).getCellRangeByName(cells).getDataArray()
@@ -94,7 +95,7 @@ def main() -> None:
         started = time.perf_counter()
         _python_calls(cells, 0.0103, peaks, grids)
         direct["warm"] = min(direct.get("warm", 1e9), time.perf_counter() - started)
-    print(f"Calc template, {record.n} samples in a 40,001-row range; best of {REPEATS}")
+    print(f"Calc template, {record.n} samples in a {RECORD_ROWS + 1:,}-row range; best of {REPEATS}")
     print(f"  Calc first recalc (all sheets)        {figures['first']:8.3f} s")
     print(f"  Calc unchanged recalc (cache hits)    {figures['unchanged']:8.3f} s")
     print(f"  Calc edit dt and recalc               {figures['edit']:8.3f} s")
