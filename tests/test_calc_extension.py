@@ -26,6 +26,7 @@ from groundstep.addin.calc.template import CALC_TEMPLATE_FILE, build_calc_packag
 from groundstep.addin.cli import main
 from groundstep.addin.common import ERROR_PREFIX
 from groundstep.addin.functions import STEP_ABOUT, STEP_DUCTILITY, STEP_HISTORY, STEP_PEAK, STEP_SPECTRUM
+from groundstep.addin.package.names import RECORD_ROWS
 from groundstep.addin.result.layout import NAME_PREFIX
 from groundstep.addin.worksheet.registry import FUNCTIONS
 from groundstep.core.synthetic import synthetic_record
@@ -250,7 +251,8 @@ def test_calc_template_opens_with_working_formulas(office, tmp_path):
     peaks = document.Sheets.getByName("Peaks")
     # the Python call gets the cells as Calc holds them: LibreOffice's reading of 17-digit text in the
     # xlsx can differ from Python's in the last bit, which the results then carry
-    held = document.Sheets.getByName("Record").getCellRangeByName("A1:A40001").getDataArray()
+    # the whole named range (the template's STEP_ cells get it clipped to the used rows: same answer)
+    held = document.Sheets.getByName("Record").getCellRangeByName(f"A1:A{RECORD_ROWS + 1}").getDataArray()
     record = [[v if v != "" else None] for (v,) in held]
     compared = 0
     quantities = ("SD", "PSV", "PSA", "SA", "SD time", "substeps")
@@ -402,3 +404,23 @@ def test_cli_fill_stores_a_copy_and_leaves_the_input(tmp_path):
     assert source.read_bytes() == before
     assert main(["verify", str(tmp_path / "result.xlsx")]) == 0
     assert main(["calc-extension", "fill", str(source), "--out", str(tmp_path / "result.csv")]) == 2
+
+
+def test_calc_template_clipped_record_gives_the_whole_range_answer(office, tmp_path):
+    """A stray text cell below the record, after blank rows: the clipped STEP_ cell gives the whole range's error."""
+    from groundstep.addin.calc.template import USED_ROWS_CELL
+
+    document = office.open(_filled_template(tmp_path))
+    record_sheet = document.Sheets.getByName("Record")
+    stray_row = _RECORD.n + 10  # rows n+2 .. n+9 stay blank
+    record_sheet.getCellRangeByName(f"A{stray_row}").setString("end")
+    document.calculateAll()
+    assert record_sheet.getCellRangeByName(USED_ROWS_CELL).getValue() == stray_row
+    held = record_sheet.getCellRangeByName(f"A1:A{RECORD_ROWS + 1}").getDataArray()
+    record = [[v if v != "" else None] for (v,) in held]
+    peaks = document.Sheets.getByName("Peaks")
+    period, damping = peaks.getCellByPosition(0, 6).getValue(), peaks.getCellByPosition(1, 6).getValue()
+    expected = STEP_PEAK(record, 0.01, "g", period, damping, "SD", "average")
+    assert isinstance(expected, str) and expected.startswith(ERROR_PREFIX)
+    assert peaks.getCellByPosition(2, 6).getString() == expected
+    document.close(True)
