@@ -10,7 +10,7 @@ rows, the template before ``calc.template.CALC_RECORD``) and as shipped
 * first recalc:     ``calculateAll`` right after opening (caches empty)
 * unchanged recalc: ``calculateAll`` again (every call a cache hit): the
                     per-call cost of the extension
-* edit and recalc:  the time step cell changed, then ``calculateAll``
+* edit and recalc:  the time step cell changed, then ``calculateAll`` (both timed)
                     (every result recomputed)
 * Python, direct:   the same calls (same cell values) made from Python,
                     cold cache and warm cache
@@ -86,8 +86,8 @@ def _calc_figures(office: Office, path: Path, repeats: int) -> dict[str, float]:
         document.calculateAll()
         figures["unchanged"] = min(figures.get("unchanged", 1e9), time.perf_counter() - started)
         for dt in (0.0101, 0.0102):
+            started = time.perf_counter()  # with auto-calculation on, the edit itself may recalculate
             document.Sheets.getByName("Input").getCellRangeByName("B15").setValue(dt)
-            started = time.perf_counter()
             document.calculateAll()
             figures["edit"] = min(figures.get("edit", 1e9), time.perf_counter() - started)
         document.close(True)
