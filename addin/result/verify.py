@@ -36,8 +36,8 @@ from . import layout as lay
 from . import sheets
 from .content import PROJECT_KEYS, Oscillator, ReportSettings, build_report
 from .guard import UnsafeWorkbook, check_package
-from .target import parameters_from_text
 from .render import CellRecorder, block_cells, column_letter, formula_fields, render_block
+from .target import parameters_from_text
 
 __all__ = ["BlockCheck", "NotAResultWorkbook", "RELATIVE_TOLERANCE", "verify_workbook"]
 
