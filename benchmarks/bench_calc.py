@@ -2,33 +2,39 @@
 
 The Calc template (``groundstep templates``) is filled with an invented
 2,000-sample record and opened in a private headless LibreOffice with the
-extension of this checkout installed. Every STEP_ cell receives the whole
-40,001-row record range, as Calc passes it.
+extension of this checkout installed, twice in one run: with every STEP_
+cell given the whole record column (``package.names.RECORD_ROWS`` + 1
+rows, the template before ``calc.template.CALC_RECORD``) and as shipped
+(the column down to its last non-blank row).
 
 * first recalc:     ``calculateAll`` right after opening (caches empty)
 * unchanged recalc: ``calculateAll`` again (every call a cache hit): the
                     per-call cost of the extension
-* edit and recalc:  the time step cell changed, then ``calculateAll``
+* edit and recalc:  the time step cell changed, then ``calculateAll`` (both timed)
                     (every result recomputed)
 * Python, direct:   the same calls (same cell values) made from Python,
                     cold cache and warm cache
 
 Figures are the best of several runs, measured in this run. Run with
-``python benchmarks/bench_calc.py`` (needs soffice, python3-uno and
-unoidl-write).
+``python benchmarks/bench_calc.py [REPEATS]`` (needs soffice, python3-uno
+and unoidl-write).
 """
 
 from __future__ import annotations
 
 import site
+import sys
 import tempfile
 import time
 from pathlib import Path
 
+from openpyxl.worksheet.formula import ArrayFormula
+
 from groundstep.addin.calc.extension import build_extension
 from groundstep.addin.calc.office import Office
-from groundstep.addin.calc.template import build_calc_package
+from groundstep.addin.calc.template import CALC_RECORD, build_calc_package
 from groundstep.addin.functions import STEP_DUCTILITY, STEP_DUCTILITY_SPECTRUM, STEP_PEAK, STEP_SPECTRUM
+from groundstep.addin.package.names import RECORD_ROWS
 from groundstep.addin.worksheet import cache
 from groundstep.core.synthetic import synthetic_record
 
@@ -50,57 +56,86 @@ def _python_calls(record, dt, periods, grids):
     return len(periods) * 8 + 4
 
 
-def main() -> None:
-    """Print first, unchanged and edit-and-recalc times in Calc beside the direct Python calls."""
-    work = Path(tempfile.mkdtemp(prefix="gs-bench-calc-"))
-    record = synthetic_record(20.0, 0.01, pga=0.3, unit="g", seed=11)
+def _filled(work: Path, record, clipped: bool) -> Path:
+    """The Calc template with `record` pasted; `clipped` False restores the whole-range record argument."""
     book = build_calc_package()
+    if not clipped:
+        for sheet in book.worksheets:
+            for row in sheet.iter_rows():
+                for cell in row:
+                    if isinstance(cell.value, ArrayFormula):
+                        cell.value = ArrayFormula(cell.value.ref, cell.value.text.replace(CALC_RECORD, "input_record"))
+                    elif isinstance(cell.value, str) and CALC_RECORD in cell.value:
+                        cell.value = cell.value.replace(CALC_RECORD, "input_record")
     for row, value in enumerate(record.accel_in("g"), start=2):
         book["Record"].cell(row, 1, float(value))
     book["Input"]["B15"], book["Input"]["B16"] = 0.01, "g"
-    book.save(work / "filled.xlsx")
+    path = work / ("clipped.xlsx" if clipped else "whole.xlsx")
+    book.save(path)
+    return path
+
+
+def _calc_figures(office: Office, path: Path, repeats: int) -> dict[str, float]:
+    figures: dict[str, float] = {}
+    for _ in range(repeats):
+        document = office.open(path)
+        started = time.perf_counter()
+        document.calculateAll()  # the component's caches live in soffice: cold only on the first run
+        figures["first"] = min(figures.get("first", 1e9), time.perf_counter() - started)
+        started = time.perf_counter()
+        document.calculateAll()
+        figures["unchanged"] = min(figures.get("unchanged", 1e9), time.perf_counter() - started)
+        for dt in (0.0101, 0.0102):
+            started = time.perf_counter()  # with auto-calculation on, the edit itself may recalculate
+            document.Sheets.getByName("Input").getCellRangeByName("B15").setValue(dt)
+            document.calculateAll()
+            figures["edit"] = min(figures.get("edit", 1e9), time.perf_counter() - started)
+        document.close(True)
+    return figures
+
+
+def main() -> None:
+    """Print first, unchanged and edit-and-recalc times in Calc beside the direct Python calls."""
+    repeats = int(sys.argv[1]) if len(sys.argv) > 1 else REPEATS
+    work = Path(tempfile.mkdtemp(prefix="gs-bench-calc-"))
+    record = synthetic_record(20.0, 0.01, pga=0.3, unit="g", seed=11)
+    paths = {clipped: _filled(work, record, clipped) for clipped in (False, True)}
     oxt = build_extension(work / "groundstep.oxt", site.getsitepackages())
     with Office(work / "profile") as office:
         office.add_extension(oxt)
-        figures: dict[str, float] = {}
-        for _ in range(REPEATS):
-            document = office.open(work / "filled.xlsx")
-            started = time.perf_counter()
-            document.calculateAll()  # the component's caches live in soffice: cold only on the first run
-            figures["first"] = min(figures.get("first", 1e9), time.perf_counter() - started)
-            started = time.perf_counter()
-            document.calculateAll()
-            figures["unchanged"] = min(figures.get("unchanged", 1e9), time.perf_counter() - started)
-            for dt in (0.0101, 0.0102):
-                document.Sheets.getByName("Input").getCellRangeByName("B15").setValue(dt)
-                started = time.perf_counter()
-                document.calculateAll()
-                figures["edit"] = min(figures.get("edit", 1e9), time.perf_counter() - started)
-            held = document.Sheets.getByName("Record").getCellRangeByName("A1:A40001").getDataArray()
-            peaks = document.Sheets.getByName("Peaks").getCellRangeByName("A7:B18").getDataArray()
-            grids = tuple(
-                document.Sheets.getByName(sheet).getCellRangeByName(cells).getDataArray()
-                for sheet, cells in (("Spectrum", "A7:A47"), ("Spectrum", "B5:D5"), ("Yielding", "A7:A26"),
-                                     ("Yielding", "B5:E5"))
-            )  # fmt: skip
-            document.close(True)
-    cells = tuple(held)  # the range as Calc hands it to the component
+        figures = {clipped: _calc_figures(office, path, repeats) for clipped, path in paths.items()}
+        document = office.open(paths[False])
+        held = document.Sheets.getByName("Record").getCellRangeByName(f"A1:A{RECORD_ROWS + 1}").getDataArray()
+        peaks = document.Sheets.getByName("Peaks").getCellRangeByName("A7:B18").getDataArray()
+        grids = tuple(
+            document.Sheets.getByName(sheet).getCellRangeByName(cells).getDataArray()
+            for sheet, cells in (("Spectrum", "A7:A47"), ("Spectrum", "B5:D5"), ("Yielding", "A7:A26"),
+                                 ("Yielding", "B5:E5"))
+        )  # fmt: skip
+        document.close(True)
+    cells = tuple(held)  # the whole range as Calc hands it to the component
+    used = tuple(held[: record.n + 1])  # heading and samples: what the clipped template hands it
     direct: dict[str, float] = {}
-    for _ in range(REPEATS):
-        cache.clear_all()
-        started = time.perf_counter()
-        calls = _python_calls(cells, 0.0103, peaks, grids)
-        direct["cold"] = min(direct.get("cold", 1e9), time.perf_counter() - started)
-        started = time.perf_counter()
-        _python_calls(cells, 0.0103, peaks, grids)
-        direct["warm"] = min(direct.get("warm", 1e9), time.perf_counter() - started)
-    print(f"Calc template, {record.n} samples in a 40,001-row range; best of {REPEATS}")
-    print(f"  Calc first recalc (all sheets)        {figures['first']:8.3f} s")
-    print(f"  Calc unchanged recalc (cache hits)    {figures['unchanged']:8.3f} s")
-    print(f"  Calc edit dt and recalc               {figures['edit']:8.3f} s")
-    print(f"  Python, the same {calls} calls, cold {direct['cold']:8.3f} s, warm {direct['warm']:8.4f} s "
-          f"({direct['warm'] / calls * 1e3:.3f} ms a call)")  # fmt: skip
-    print(f"  ratio Calc edit-and-recalc / Python cold calls: {figures['edit'] / direct['cold']:.2f}")
+    for _ in range(repeats):
+        for key, given in (("", cells), ("used ", used)):
+            cache.clear_all()
+            started = time.perf_counter()
+            calls = _python_calls(given, 0.0103, peaks, grids)
+            direct[key + "cold"] = min(direct.get(key + "cold", 1e9), time.perf_counter() - started)
+            started = time.perf_counter()
+            _python_calls(given, 0.0103, peaks, grids)
+            direct[key + "warm"] = min(direct.get(key + "warm", 1e9), time.perf_counter() - started)
+    print(f"Calc template, {record.n} samples, record column of {RECORD_ROWS + 1:,} rows; best of {repeats}")
+    for clipped, label in ((False, "whole range (before)"), (True, "clipped to used rows")):
+        f = figures[clipped]
+        print(f"  {label:22s} first {f['first']:8.3f} s  unchanged {f['unchanged']:8.3f} s  "
+              f"edit and recalc {f['edit']:8.3f} s  (edit / Python cold {f['edit'] / direct['cold']:.2f})")  # fmt: skip
+    for key, label in (("", "the whole range"), ("used ", "the used rows")):
+        print(f"  Python, the same {calls} calls on {label}, cold {direct[key + 'cold']:8.3f} s, warm "
+              f"{direct[key + 'warm']:8.4f} s ({direct[key + 'warm'] / calls * 1e3:.3f} ms a call)")  # fmt: skip
+    print(f"  clipped Calc edit and recalc / Python cold on the used rows: "
+          f"{figures[True]['edit'] / direct['used cold']:.2f}")  # fmt: skip
+    print(f"  edit and recalc, whole range / clipped: {figures[False]['edit'] / figures[True]['edit']:.1f}x")
 
 
 if __name__ == "__main__":

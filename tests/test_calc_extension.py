@@ -26,6 +26,7 @@ from groundstep.addin.calc.template import CALC_TEMPLATE_FILE, build_calc_packag
 from groundstep.addin.cli import main
 from groundstep.addin.common import ERROR_PREFIX
 from groundstep.addin.functions import STEP_ABOUT, STEP_DUCTILITY, STEP_HISTORY, STEP_PEAK, STEP_SPECTRUM
+from groundstep.addin.package.names import RECORD_ROWS
 from groundstep.addin.result.layout import NAME_PREFIX
 from groundstep.addin.worksheet.registry import FUNCTIONS
 from groundstep.core.synthetic import synthetic_record
@@ -250,7 +251,8 @@ def test_calc_template_opens_with_working_formulas(office, tmp_path):
     peaks = document.Sheets.getByName("Peaks")
     # the Python call gets the cells as Calc holds them: LibreOffice's reading of 17-digit text in the
     # xlsx can differ from Python's in the last bit, which the results then carry
-    held = document.Sheets.getByName("Record").getCellRangeByName("A1:A40001").getDataArray()
+    # the whole named range (the template's STEP_ cells get it clipped to the used rows: same answer)
+    held = document.Sheets.getByName("Record").getCellRangeByName(f"A1:A{RECORD_ROWS + 1}").getDataArray()
     record = [[v if v != "" else None] for (v,) in held]
     compared = 0
     quantities = ("SD", "PSV", "PSA", "SA", "SD time", "substeps")
@@ -311,3 +313,114 @@ def test_gnumeric_and_libreoffice_agree_with_python(tmp_path):
     # column by column: LibreOffice snaps nearly-equal subtractions to 0, Gnumeric does not, so compare
     # against the peak (1e-12 of it) rather than each value's own size
     np.testing.assert_allclose(steps_gn, steps_lo, rtol=0, atol=1e-12 * peak)
+
+
+def test_excel_cells_turns_calc_blanks_into_none():
+    """Calc's getDataArray rows become xlwings' 2-D lists: '' -> None, numbers and text kept."""
+    from groundstep.addin.calc.live import excel_cells
+
+    assert excel_cells((("", 0.0), ("g", 1.5))) == [[None, 0.0], ["g", 1.5]]  # 0.0 is a value, not a blank
+
+
+def _filled_template(tmp_path):
+    book = build_calc_package()
+    for row, value in enumerate((float(v) for v in _RECORD.accel_in("g")), start=2):
+        book["Record"].cell(row, 1, value)
+    book["Input"]["B15"], book["Input"]["B16"] = 0.01, "g"
+    book.save(tmp_path / "filled.xlsx")
+    return tmp_path / "filled.xlsx"
+
+
+def test_fill_document_equals_the_file_writer(office, tmp_path):
+    """The Calc template filled over UNO, saved as xlsx: groundstep verify matches every checked block."""
+    from groundstep.addin.calc.live import fill_document, named_cells
+    from groundstep.addin.package.inputs import read_input_workbook
+    from groundstep.addin.result.content import build_report
+    from groundstep.addin.result.render import CellRecorder, block_cells, render
+    from groundstep.addin.result.verify import verify_workbook
+
+    source = _filled_template(tmp_path)
+    document = office.open(source)
+    record_cells = named_cells(document, "input_record")
+    assert len(record_cells) == _RECORD.n + 1  # clipped to the used rows of the 200,001-row range
+    result = office.new_spreadsheet()
+    report = fill_document(document, target=result)
+    result.calculateAll()
+    office.save(result, tmp_path / "result.xlsx", "Calc Office Open XML")
+    document.close(True)
+    result.close(True)
+    checks = verify_workbook(tmp_path / "result.xlsx")
+    assert all(check.ok for check in checks), [c.line() for c in checks if not c.ok]
+    assert sum(check.cells for check in checks) > 5000 and checks[-1].message.endswith("'pass'")
+    # the openpyxl route (groundstep fill's reader and the file writer's layout) on the same file
+    record, settings, _ = read_input_workbook(source)
+    by_file, by_calc = CellRecorder(), CellRecorder()
+    expected_report = build_report(record, settings)
+    render(expected_report.layout, expected_report.content, by_file)
+    render(report.layout, report.content, by_calc)
+    compared = 0
+    for sheet in report.layout.sheets:
+        for block in (b for b in sheet.blocks if getattr(b, "checked", False)):
+            for row, column in block_cells(sheet, block):
+                got, expected = by_calc.cells.get((sheet.name, row, column)), by_file.cells.get((sheet.name, row, column))
+                if isinstance(expected, float):
+                    # verify's 1e-9 relative: LibreOffice's parse of the 17-digit record text may differ from
+                    # Python's in the last bit; no absolute floor (abs=1e-300 only lets exact zeros match)
+                    assert got == pytest.approx(expected, rel=1e-9, abs=1e-300), (sheet.name, row, column)
+                elif not (sheet.name == "Audit" or block.key.startswith("record")):  # source label and title differ
+                    assert got == expected, (sheet.name, row, column)
+                compared += 1
+    assert compared > 5000
+
+
+def test_fill_document_refuses_a_template_sheet_of_a_result_name(office, tmp_path):
+    """Filling the template into itself stops at its own Record sheet instead of overwriting it."""
+    from groundstep.addin.calc.live import fill_document
+
+    document = office.open(_filled_template(tmp_path))
+    with pytest.raises(ValueError, match="already has a sheet 'Record' that groundstep did not write"):
+        fill_document(document)
+    document.close(True)
+
+
+def test_fill_document_names_a_blank_time_step(office, tmp_path):
+    """A blank time-step cell in the Calc document gives the file reader's message, not a 0 s time step."""
+    from groundstep.addin.calc.live import fill_document
+    from groundstep.addin.package.inputs import InputError
+
+    document = office.open(_filled_template(tmp_path))
+    document.Sheets.getByName("Input").getCellRangeByName("B15").setString("")
+    with pytest.raises(InputError, match="time-step cell"):
+        fill_document(document, target=office.new_spreadsheet())
+    document.close(True)
+
+
+def test_cli_fill_stores_a_copy_and_leaves_the_input(tmp_path):
+    """`calc-extension fill` writes an .ods and an .xlsx result; the input's bytes are unchanged."""
+    _soffice()
+    source = _filled_template(tmp_path)
+    before = source.read_bytes()
+    assert main(["calc-extension", "fill", str(source), "--out", str(tmp_path / "result.xlsx")]) == 0
+    assert source.read_bytes() == before
+    assert main(["verify", str(tmp_path / "result.xlsx")]) == 0
+    assert main(["calc-extension", "fill", str(source), "--out", str(tmp_path / "result.csv")]) == 2
+
+
+def test_calc_template_clipped_record_gives_the_whole_range_answer(office, tmp_path):
+    """A stray text cell below the record, after blank rows: the clipped STEP_ cell gives the whole range's error."""
+    from groundstep.addin.calc.template import USED_ROWS_CELL
+
+    document = office.open(_filled_template(tmp_path))
+    record_sheet = document.Sheets.getByName("Record")
+    stray_row = _RECORD.n + 10  # rows n+2 .. n+9 stay blank
+    record_sheet.getCellRangeByName(f"A{stray_row}").setString("end")
+    document.calculateAll()
+    assert record_sheet.getCellRangeByName(USED_ROWS_CELL).getValue() == stray_row
+    held = record_sheet.getCellRangeByName(f"A1:A{RECORD_ROWS + 1}").getDataArray()
+    record = [[v if v != "" else None] for (v,) in held]
+    peaks = document.Sheets.getByName("Peaks")
+    period, damping = peaks.getCellByPosition(0, 6).getValue(), peaks.getCellByPosition(1, 6).getValue()
+    expected = STEP_PEAK(record, 0.01, "g", period, damping, "SD", "average")
+    assert isinstance(expected, str) and expected.startswith(ERROR_PREFIX)
+    assert peaks.getCellByPosition(2, 6).getString() == expected
+    document.close(True)

@@ -5,8 +5,13 @@
 of cells is one ``setDataArray`` (values) or ``setFormulaArray`` (formulas)
 call, never a cell at a time (over a loopback connection one call costs
 about as much as a few cells). `fill_document` is the ``fill_results``
-macro's job for Calc: the named input cells of the open document, the
-report, the result sheets.
+macro's job for Calc: the named input cells of the open document
+(``NamedRanges``, read with one ``getDataArray`` each, blanks turned into
+``None`` as xlwings passes them), the report, the result sheets through
+`CalcWriter`. The result sheets go into `target` (default: the document
+itself); the calculation-package template has sheets of its own named
+``Record`` and ``Peaks``, as the result workbook does, so a filled template
+is filled into a new document (``groundstep calc-extension fill``).
 
 The layout's formulas are written in Excel's A1 syntax (``Record!$B$9``,
 ``,`` between arguments); `calc_formula` rewrites them into the syntax
@@ -15,15 +20,24 @@ Calc's API takes (``$Record.$B$9``, ``;``).
 
 from __future__ import annotations
 
+import os
 import re
+import tempfile
 from collections.abc import Sequence
+from pathlib import Path
 from typing import Any
 
-from groundstep.addin.common import as_text
+from groundstep.addin.common import as_text, write_atomically
+from groundstep.addin.package.inputs import settings_from_cells
+from groundstep.addin.package.names import lookup_names
 from groundstep.addin.result import layout as lay
-from groundstep.addin.result.render import Formula, SeriesRange, column_letter
+from groundstep.addin.result.content import Report, ReportSettings, build_report
+from groundstep.addin.result.render import Formula, SeriesRange, column_letter, render
 
-__all__ = ["CalcWriter", "calc_formula"]
+__all__ = ["STORE_FILTERS", "CalcWriter", "calc_formula", "excel_cells", "fill_document", "fill_file", "named_cells"]
+
+#: LibreOffice export filter of each result file type `fill_file` writes.
+STORE_FILTERS = {".ods": "calc8", ".xlsx": "Calc Office Open XML"}
 
 _TOKENS = re.compile(r'"(?:[^"]|"")*"|\'(?:[^\']|\'\')*\'!|[A-Za-z_][A-Za-z0-9_.]*!|,|[^"\',A-Za-z_]+|[A-Za-z_][A-Za-z0-9_.]*')
 _BOLD = 150.0  # com.sun.star.awt.FontWeight.BOLD
@@ -42,6 +56,141 @@ def calc_formula(formula: str) -> str:
         else:
             out.append(token)
     return "".join(out)
+
+
+def excel_cells(rows: Sequence[Sequence[Any]]) -> list[list[Any]]:
+    """Calc's ``getDataArray`` rows as xlwings passes a range (``ndim=2``): blank ``''`` -> None.
+
+    Example
+    -------
+    >>> excel_cells(((0.01, ""), ("g", 2.0)))
+    [[0.01, None], ['g', 2.0]]
+    """
+    return [[None if value == "" else value for value in row] for row in rows]
+
+
+def named_cells(document: Any, name: str) -> list[list[Any]] | None:
+    """The cells of `document`'s named range `name` as xlwings passes them, or None without that name.
+
+    Rows beyond the sheet's used area are blank; they are left out (as
+    ``package.inputs.clip_reference`` does for a file), so a 200,001-row
+    record range costs what the filled rows cost. A name whose reference
+    is broken (``#REF!``) reads as missing.
+    """
+    names = document.NamedRanges
+    if not names.hasByName(name):
+        return None
+    cells = names.getByName(name).getReferredCells()
+    if cells is None:
+        return None
+    address = cells.getRangeAddress()
+    cursor = document.Sheets.getByIndex(address.Sheet).createCursor()
+    cursor.gotoEndOfUsedArea(False)
+    used = cursor.getRangeAddress()
+    last_row, last_column = min(address.EndRow, used.EndRow), min(address.EndColumn, used.EndColumn)
+    if last_row < address.StartRow or last_column < address.StartColumn:  # wholly outside the used area
+        width = address.EndColumn - address.StartColumn + 1
+        return [[None] * width]
+    if (last_row, last_column) != (address.EndRow, address.EndColumn):
+        cells = cells.getCellRangeByPosition(0, 0, last_column - address.StartColumn, last_row - address.StartRow)
+    return excel_cells(cells.getDataArray())
+
+
+def fill_document(
+    document: Any, base: ReportSettings | None = None, target: Any = None, *, command: str = "live fill (Calc)"
+) -> Report:
+    """Read inputs from `document`'s named cells, compute, write the result sheets into `target`.
+
+    Parameters
+    ----------
+    document : com.sun.star.sheet.SpreadsheetDocument
+        The open Calc document; its input cells are found by the names in
+        ``package.names.INPUTS`` (the template's, or ``gs_in_*`` aliases).
+    base : ReportSettings, optional
+        Settings where the document is silent.
+    target : com.sun.star.sheet.SpreadsheetDocument, optional
+        Where the result sheets go; default `document` itself.
+    command : str
+        What the Audit sheet records as the command.
+
+    Returns
+    -------
+    Report
+        What was written.
+
+    Raises
+    ------
+    package.inputs.InputError, worksheet.cells.CellError
+        Missing or bad input cells (the message names the cell).
+    ValueError
+        `target` has a sheet of a result sheet's name that groundstep did
+        not write.
+    """
+
+    def get(key: str) -> Any:
+        for name in lookup_names(key):
+            found = named_cells(document, name)
+            if found is not None:
+                return found
+        return None
+
+    title = document.getTitle() if hasattr(document, "getTitle") else "Calc document"
+    label = f"{title} (named input cells)"
+    record, settings = settings_from_cells(get, source=label, base=base)
+    report = build_report(record, settings, command=command, source=label)
+    titles = {sheet.name: sheet.title for sheet in report.layout.sheets}
+    render(report.layout, report.content, CalcWriter(document if target is None else target, titles))
+    return report
+
+
+def fill_file(
+    source: str | os.PathLike[str], out: str | os.PathLike[str], *, force: bool = False, command: str = ""
+) -> Report:
+    """Open `source` in a private headless LibreOffice, fill its results into a new document, store it as `out`.
+
+    `source` (a filled calculation-package template, .xlsx or .ods) is
+    opened read-only and never stored; the result sheets go into a new
+    document (see the module notes), recalculated and stored as `out`
+    (atomically) in the format its suffix names (`STORE_FILTERS`).
+
+    Raises
+    ------
+    ValueError
+        `out` has another suffix, or names `source`; missing or bad input cells.
+    FileExistsError
+        `out` exists and `force` is false.
+    office.OfficeError
+        LibreOffice could not be started or could not open `source`.
+    """
+    from .office import Office, OfficeError, import_uno, property_values
+
+    source, out = Path(source), Path(out)
+    suffix = out.suffix.lower()
+    if suffix not in STORE_FILTERS:
+        raise ValueError(f"`--out` {str(out)!r} must end in {' or '.join(STORE_FILTERS)}; choose one of them")
+    if out.resolve() == source.resolve():
+        raise ValueError("`--out` names the input document; the input is never overwritten: choose another file")
+    if not source.is_file():
+        raise FileNotFoundError(f"input document {str(source)!r} does not exist or is not a file")
+    if out.exists() and not force:
+        raise FileExistsError(f"output {str(out)!r} exists; pass --force to replace it")
+    uno = import_uno()
+    with tempfile.TemporaryDirectory(prefix="groundstep-calc-fill-") as work, Office(Path(work) / "profile") as office:
+        url = uno.systemPathToFileUrl(str(source.resolve()))
+        document = office.desktop.loadComponentFromURL(url, "_blank", 0, property_values(Hidden=True, ReadOnly=True))
+        if document is None or not hasattr(document, "NamedRanges"):
+            raise OfficeError(f"LibreOffice could not open {str(source)!r} as a spreadsheet")
+        result = office.new_spreadsheet()
+        report = fill_document(document, target=result, command=command or f"calc-extension fill {source.name}")
+        sheets = result.Sheets
+        first = sheets.getByIndex(0)  # the new document's own empty sheet
+        if first.Name not in {sheet.name for sheet in report.layout.sheets}:
+            sheets.removeByName(first.Name)
+        result.calculateAll()
+        write_atomically(out, lambda path: Office.save(result, path, STORE_FILTERS[suffix]), force=force)
+        result.close(True)
+        document.close(True)
+    return report
 
 
 class CalcWriter:

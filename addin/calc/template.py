@@ -9,6 +9,17 @@ cells show ``#NAME?`` in Calc. `build_calc_package` is the same workbook
 in a formula replaced by that name; Calc shows and accepts ``STEP_PEAK``
 once the file is open. Excel cannot use this file (and Calc cannot use the
 Excel one): ``groundstep templates DIR`` writes both.
+
+Calc hands a range argument to an add-in cell by cell, so every ``STEP_``
+cell given the whole 200,001-row ``input_record`` would cost the whole
+range on each call. In this template the record argument of each
+``STEP_`` call is `CALC_RECORD`: the record column from row 1 down to the
+last non-blank row, which one cell (`USED_ROWS_CELL` on the Record sheet)
+finds once per change of the record. The rows left out are blank, and the
+record reader drops trailing blanks anyway (``worksheet.cells.numbers``),
+so every answer is the one the whole range gives; an empty column gives
+``INDEX(...;0)``, the whole range again, and an error cell in the record
+reaches every ``STEP_`` cell as before.
 """
 
 from __future__ import annotations
@@ -21,15 +32,31 @@ from openpyxl import Workbook
 from openpyxl.worksheet.formula import ArrayFormula
 
 from groundstep.addin.common import write_atomically
+from groundstep.addin.package.names import RECORD_ROWS
 from groundstep.addin.package.template import build_calculation_package
 from groundstep.addin.worksheet.registry import FUNCTIONS
 
 from .edge import formula_name
 
-__all__ = ["CALC_TEMPLATE_FILE", "build_calc_package", "calc_formula_names", "write_calc_template"]
+__all__ = [
+    "CALC_RECORD",
+    "CALC_TEMPLATE_FILE",
+    "USED_ROWS_CELL",
+    "build_calc_package",
+    "calc_formula_names",
+    "write_calc_template",
+]
 
 #: File name of the Calc template `write_calc_template` writes.
 CALC_TEMPLATE_FILE = "groundstep_calculation_package_calc.xlsx"
+
+#: Record-sheet cell holding the last non-blank row of the record column (0 when it is empty).
+USED_ROWS_CELL = "D1"
+_COLUMN = f"Record!$A$1:$A${RECORD_ROWS + 1}"
+#: The record argument of every STEP_ call in the Calc template: rows 1 to the last non-blank one.
+CALC_RECORD = f"Record!$A$1:INDEX({_COLUMN},Record!${USED_ROWS_CELL[0]}${USED_ROWS_CELL[1:]})"
+_USED_ROWS = f'=SUMPRODUCT(MAX(({_COLUMN}<>"")*ROW({_COLUMN})))'
+_FIRST_RECORD_ARGUMENT = re.compile(r"(STEPFUNCTIONS\.STEP[A-Z]*\()input_record([,)])")
 
 _NOTE = (
     "Fill the yellow cells and paste the record on the Record sheet. This file is for LibreOffice Calc with "
@@ -42,7 +69,8 @@ def calc_formula_names(formula: str) -> str:
     """`formula` with every ``STEP_NAME(`` replaced by the name Calc resolves on import."""
     names = sorted(FUNCTIONS, key=len, reverse=True)  # STEP_DUCTILITY_SPECTRUM before STEP_DUCTILITY
     pattern = re.compile(r"\b(" + "|".join(map(re.escape, names)) + r")\(")
-    return pattern.sub(lambda match: formula_name(match.group(1)) + "(", formula)
+    renamed = pattern.sub(lambda match: formula_name(match.group(1)) + "(", formula)
+    return _FIRST_RECORD_ARGUMENT.sub(lambda match: match.group(1) + CALC_RECORD + match.group(2), renamed)
 
 
 def build_calc_package() -> Workbook:
@@ -56,6 +84,9 @@ def build_calc_package() -> Workbook:
                 elif isinstance(cell.value, str) and cell.value.startswith("="):
                     cell.value = calc_formula_names(cell.value)
     book["Input"]["A3"] = _NOTE
+    record = book["Record"]
+    record[USED_ROWS_CELL] = _USED_ROWS
+    record["C1"] = "last used row (for the STEP_ cells)"
     return book
 
 

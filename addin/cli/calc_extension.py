@@ -1,4 +1,4 @@
-"""``groundstep calc-extension``: build, install or remove the LibreOffice Calc extension."""
+"""``groundstep calc-extension``: build, install or remove the LibreOffice Calc extension; fill a document in Calc."""
 
 from __future__ import annotations
 
@@ -26,21 +26,31 @@ def add(parser: argparse.ArgumentParser) -> None:
         if name == "install":
             action.add_argument("--python-env", metavar="DIR",
                                 help="virtual environment made from LibreOffice's Python that holds groundstep")  # fmt: skip
+    fill = actions.add_parser("fill", help="fill the result sheets of a filled-in template in headless LibreOffice")
+    fill.add_argument("document", metavar="DOCUMENT.xlsx", help="the filled-in template (opened read-only)")
+    fill.add_argument("--out", required=True, metavar="RESULT.ods|.xlsx", help="the new result document")
+    fill.add_argument("--force", action="store_true", help="replace the result document if it exists")
 
 
 def run(args: argparse.Namespace, command_line: str) -> int:
     """Run the chosen action; problems come back as one line with the fix."""
     from groundstep.addin.calc import install
     from groundstep.addin.calc.extension import build_extension
+    from groundstep.addin.calc.office import OfficeError
 
     try:
-        if args.action == "build":
+        if args.action == "fill":
+            from groundstep.addin.calc.live import fill_file
+
+            report = fill_file(args.document, args.out, force=args.force, command=command_line)
+            print(f"wrote {args.out}: {len(report.layout.sheets)} result sheets")
+        elif args.action == "build":
             print(f"wrote {build_extension(args.out, args.site or site.getsitepackages(), force=args.force)}")
         elif args.action == "install":
             print(install.install(args.profile, args.python_env))
         else:
             print(install.remove(args.profile))
-    except install.InstallError as exc:
+    except (install.InstallError, OfficeError) as exc:
         print(f"groundstep calc-extension {args.action}: {exc}")
         return EXIT_INPUT
     return EXIT_OK
