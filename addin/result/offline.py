@@ -9,8 +9,8 @@ place with ``os.replace``.
 from __future__ import annotations
 
 import os
-from copy import copy
 from collections.abc import Sequence
+from copy import copy
 from pathlib import Path
 from typing import Any
 
