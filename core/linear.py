@@ -240,11 +240,18 @@ def elastic_spectrum(
         found = np.empty((3, order.size))
         zeros = np.zeros(order.size)
         starts = _kernels.chunk_starts(used[order])
-        _kernels.spectrum_peaks(-record.accel, np.ascontiguousarray(coef[:, order]), used[order], starts, zeros, zeros, found)
+        # The kernels step the load p = -ü_g. Negating the load rows A4..A7 of the map instead and
+        # handing them ü_g itself saves a record-length copy and changes no bit: negation is exact
+        # and rounding is symmetric about zero, so every product, sum and interpolated load of the
+        # recurrence comes out exactly negated and the state (u, v) exactly the same.
+        sorted_coef = np.ascontiguousarray(coef[:, order])
+        sorted_coef[4:8] *= -1.0
+        _kernels.spectrum_peaks(record.accel, sorted_coef, used[order], starts, zeros, zeros, found)
         unsorted = np.empty_like(found)
         unsorted[:, order] = found
         peaks[:, moving] = unsorted
-    peaks[2, ~moving] = record.pga
+    if not moving.all():  # rigid oscillators: max|ü_g|, read without a record-length |ü_g| temporary
+        peaks[2, ~moving] = max(float(record.accel.max()), -float(record.accel.min()))
     _warn_grid_substeps(record.dt, substeps, "oscillators", resolved, ratio)
     shape = grid_t.shape
     omega = np.zeros(flat_t.size)

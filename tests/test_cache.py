@@ -4,9 +4,10 @@ from __future__ import annotations
 
 import threading
 
+import numpy as np
 import pytest
 
-from groundstep.addin.worksheet.cache import LRUCache, digest
+from groundstep.addin.worksheet.cache import LRUCache, PeriodMemory, digest, is_plain, strict_digest
 
 
 def test_least_recently_used_entry_goes_first():
@@ -67,3 +68,51 @@ def test_many_threads_stay_within_the_bound():
         thread.join()
     assert len(cache) == 50
     assert cache.hits + cache.misses == 8 * 200
+
+
+@pytest.mark.parametrize(
+    ("first", "second"),
+    [
+        ([[0.1], [0.2]], [[0.1], [0.2 + 2**-54]]),  # the last bit of one sample
+        ([[1.0], [2.0]], [[1], [2.0]]),  # 1 and 1.0: equal numbers, other cell types
+        ([["1"], [2.0]], [[1], [2.0]]),  # the text "1" and the number 1
+        ([[float("nan")], [2.0]], [[None], [2.0]]),  # a NaN cell and a blank
+        ([[True], [2.0]], [[1], [2.0]]),  # a Boolean and the integer it equals
+        ([[0.1, 0.2]], [[0.1], [0.2]]),  # one row against one column of the same values
+        ([0.1, 0.2], ([0.1, 0.2],)),  # a list and a tuple holding it
+    ],
+)
+def test_digest_tells_apart_cells_that_differ_in_value_type_or_shape(first, second):
+    """Two ranges share a digest only when every cell is equal and of the same type, in the same shape."""
+    assert is_plain(first) and is_plain(second)
+    assert digest(first) != digest(second)
+    assert digest(first) == digest([row[:] if isinstance(row, list) else row for row in first])  # equal copy: same
+
+
+def test_digest_of_numpy_arrays_names_dtype_and_shape():
+    """Arrays with equal bytes but another dtype or shape get other digests."""
+    values = np.array([1.0, 2.0, 3.0, 4.0])
+    assert digest(values) == digest(values.copy())
+    assert digest(values) != digest(values.view(np.int64))
+    assert digest(values) != digest(values.reshape(2, 2))
+    assert is_plain(values) and not is_plain(np.array([1.0, "a"], dtype=object))
+
+
+def test_cells_the_fast_digest_cannot_tell_apart_are_not_plain():
+    """numpy scalars are written by marshal as raw bytes: their fast digests may collide, so they are not plain."""
+    as_float = [[np.float64(1.0)], [np.float64(2.0)]]
+    as_int = [[np.float64(1.0).view(np.int64)], [np.float64(2.0).view(np.int64)]]
+    assert digest(as_float) == digest(as_int)  # the collision that is_plain guards against
+    assert not is_plain(as_float) and not is_plain(as_int)
+    assert strict_digest(as_float) != strict_digest(as_int)
+
+
+def test_period_memory_hands_remembered_periods_to_the_first_cell_of_a_new_record():
+    """Each record's first cell of a setting gets every period asked before; later cells get their own only."""
+    memory = PeriodMemory(periods=3)
+    assert memory.batch("record A", "5%", 1.0) == (1.0,)
+    assert memory.batch("record A", "5%", 2.0) == (2.0,)
+    assert memory.batch("record B", "5%", 3.0) == (3.0, 1.0, 2.0)
+    assert memory.batch("record B", "5%", 4.0) == (4.0,)
+    assert memory.batch("record C", "2%", 1.0) == (1.0,)  # another damping remembers its own periods
+    assert memory.batch("record D", "5%", 2.0) == (2.0, 3.0, 4.0)  # bounded: period 1.0 was forgotten

@@ -493,3 +493,27 @@ def test_serial_and_parallel_spectrum_kernels_agree_bit_for_bit():
     _kernels.peaks_serial(load, coef, used, starts, zeros, zeros, serial)
     _kernels.peaks(load, coef, used, starts, zeros, zeros, parallel)
     np.testing.assert_array_equal(serial, parallel)  # exact: each chunk is computed by the same compiled code
+
+
+@pytest.mark.parametrize("count", [7, 700])  # below and above SERIAL_WORK: the serial and the parallel kernel
+@pytest.mark.parametrize("method", ["average", "linear", "exact", (0.3, 0.6)])
+def test_spectrum_on_the_record_itself_equals_the_kernel_on_the_negated_load(count, method):
+    """elastic_spectrum hands the kernels ü_g with negated load coefficients: bit for bit the former negated-copy path."""
+    from groundstep.core import _kernels
+    from groundstep.core.linear import _step_coefficients
+    from groundstep.core.methods import resolve_method
+
+    rng = np.random.default_rng(11)
+    record = Record(0.2 * rng.standard_normal(4000), 0.01, "g")
+    periods = np.geomspace(0.02, 8.0, count)  # sub-stepped below T = 0.1 s
+    spectrum = _quiet(elastic_spectrum, record, periods, 0.05, method)
+    coef, used = _step_coefficients(record.dt, periods, np.full(count, 0.05), resolve_method(method), 0.1)
+    order = np.argsort(used, kind="stable")
+    found, zeros = np.empty((3, count)), np.zeros(count)
+    # reference: the kernel on the load p = -ü_g itself, as elastic_spectrum called it before
+    _kernels.spectrum_peaks(-record.accel, np.ascontiguousarray(coef[:, order]), used[order],
+                            _kernels.chunk_starts(used[order]), zeros, zeros, found)  # fmt: skip
+    reference = np.empty_like(found)
+    reference[:, order] = found
+    for row, name in enumerate(("sd", "sv", "sa")):
+        assert np.array_equal(getattr(spectrum, name)[0], reference[row])  # exact: no tolerance

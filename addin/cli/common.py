@@ -11,6 +11,7 @@ from typing import Any
 
 from groundstep.addin.common import CAUTION
 from groundstep.addin.result.content import Oscillator, ReportSettings
+from groundstep.addin.result.sheets import SPECTRA
 from groundstep.core import period_grid
 from groundstep.core.checks import check_damping, check_hardening, check_integer, check_period, check_positive
 from groundstep.core.defaults import DEFAULT_DAMPING
@@ -24,11 +25,13 @@ __all__ = [
     "add_processing_options",
     "add_settings",
     "add_spectrum_options",
+    "add_target_options",
     "floats",
     "print_headline",
     "print_notes",
     "refuse_existing",
     "settings_from_options",
+    "target_from_options",
 ]
 
 EXIT_OK, EXIT_MISMATCH, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
@@ -69,6 +72,7 @@ def add_settings(p: argparse.ArgumentParser) -> None:
                             "it also appears in the yielding table (damping default 0.05)")  # fmt: skip
         g.add_argument("--hardening", type=float, default=None, metavar="ALPHA",
                        help="post-yield stiffness ratio of the yielding oscillators, in [0, 1) (default 0: elastoplastic)")  # fmt: skip
+        add_target_options(g)
         g.add_argument("--verification-period", type=float, default=None, metavar="SECONDS",
                        help="period of the Verification sheet's oscillator (h/T <= 0.1)")  # fmt: skip
 
@@ -118,7 +122,66 @@ def settings_from_options(args: argparse.Namespace, base: ReportSettings | None 
         changes["low_hz"], changes["high_hz"] = _corners(args.bandpass)
     if getattr(args, "verification_period", None) is not None:
         changes["verification_period"] = args.verification_period
+    target = target_from_options(args)
+    if target is not None:
+        changes["target_standard"], changes["target_parameters"] = target
     return replace(base, **changes)
+
+
+def add_target_options(parser: Any, *, required: bool = False) -> None:
+    """--target STANDARD:NAME=VALUE,... and --target-table CSV (one of the two; `required` for the suite)."""
+    target = parser.add_mutually_exclusive_group(required=required)
+    target.add_argument("--target", metavar="STANDARD:NAME=VALUE,...",
+                        help="design spectrum: ASCE7:sds=1.0,sd1=0.6,tl=8 or EN1998:ag=0.25,ground_type=C"
+                             "[,spectrum_type=1,importance_factor=1,damping=0.05] (accelerations in g)")  # fmt: skip
+    target.add_argument("--target-table", metavar="CSV", help="a target of your own: lines 'period [s], Sa [g]'")
+
+
+def target_from_options(args: argparse.Namespace) -> tuple[str, tuple[tuple[str, Any], ...]] | None:
+    """(standard, parameters) for ``groundstep.core.design_spectrum`` from --target or --target-table; None without.
+
+    ``--target ASCE7:sds=1.0,sd1=0.6,tl=8`` gives ``("ASCE7", (("sds", 1.0), ...))``
+    (names lower-cased, values as int, float or text); ``--target-table FILE`` reads
+    ``period, Sa`` lines (``;`` also separates; only the first line may be a header)
+    into ``("table", (("periods_table", ...), ("sa_table", ...)))``.
+    """
+    if getattr(args, "target_table", None):
+        try:
+            text = Path(args.target_table).read_text(encoding="utf-8")
+        except OSError as exc:
+            raise UsageError(f"--target-table {args.target_table!r} cannot be read ({exc.strerror or exc})") from None
+        rows = [line.replace(";", ",").split(",") for line in text.splitlines()]
+        pairs = []
+        for number, row in enumerate(rows, start=1):
+            if not any(cell.strip() for cell in row):
+                continue
+            try:
+                pairs.append((float(row[0]), float(row[1])))
+            except (ValueError, IndexError):
+                if pairs or number > 1:  # only the first line may be a header
+                    raise UsageError(f"--target-table line {number}: expected 'period, Sa', got {','.join(row)!r}") from None
+        return "table", (("periods_table", tuple(p for p, _ in pairs)), ("sa_table", tuple(s for _, s in pairs)))
+    if not getattr(args, "target", None):
+        return None
+    standard, colon, text = args.target.partition(":")
+    if not colon or not standard.strip():
+        raise UsageError(f"--target {args.target!r}: give STANDARD:NAME=VALUE,..., e.g. ASCE7:sds=1.0,sd1=0.6,tl=8")
+    parameters = []
+    for item in filter(None, (part.strip() for part in text.split(","))):
+        name, equals, value = item.partition("=")
+        if not equals:
+            raise UsageError(f"--target {args.target!r}: {item!r} is not NAME=VALUE")
+        parameters.append((name.strip().lower(), _value(value.strip())))
+    return standard.strip(), tuple(parameters)
+
+
+def _value(text: str) -> Any:
+    for kind in (int, float):
+        try:
+            return kind(text)
+        except ValueError:
+            pass
+    return text
 
 
 def _corners(text: str) -> tuple[float | None, float | None]:
@@ -176,6 +239,8 @@ def print_headline(out: Path, report: Any, seconds: float) -> None:
             f"  largest ductility demand: {h['largest_ductility']:.3g} ({h['largest_ductility_label']}, "
             f"R = {h['largest_ductility_reduction_factor']:g}; yielding table on the Peaks sheet)"
         )
+    if "target" in h:
+        print(f"  target spectrum on the {SPECTRA} chart: {h['target']}")
     print(
         f"  Verification sheet: T = {h['verification_period']:g} s, damping {h['verification_damping']:g}, "
         "every step written as formulas (open in a spreadsheet; check with 'groundstep verify')"

@@ -9,7 +9,7 @@ from typing import Any
 
 from groundstep.addin.common import CAUTION
 
-from .common import EXIT_OK, UsageError, floats, refuse_existing
+from .common import EXIT_OK, UsageError, add_target_options, floats, refuse_existing, target_from_options
 
 __all__ = ["add", "run"]
 
@@ -22,11 +22,7 @@ def add(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--out", default="groundstep-suite.xlsx", metavar="OUT.xlsx", help="the suite workbook")
     parser.add_argument("--dt", type=float, default=None, help="time step [s] of files without a time column")
     parser.add_argument("--unit", default=None, help="acceleration unit of the records (g, m/s2, cm/s2, ...)")
-    target = parser.add_mutually_exclusive_group(required=True)
-    target.add_argument("--target", metavar="STANDARD:NAME=VALUE,...",
-                        help="ASCE7:sds=1.0,sd1=0.6,tl=8 or EN1998:ag=0.25,ground_type=C[,spectrum_type=1,"
-                             "importance_factor=1,damping=0.05]")  # fmt: skip
-    target.add_argument("--target-table", metavar="CSV", help="a target of your own: lines 'period [s], Sa [g]'")
+    add_target_options(parser, required=True)
     parser.add_argument("--preset", choices=("ASCE7", "EN1998"), default=None,
                         help="the standard's suite rule (range 0.2T-2T, 90 %%, fewest records); needs --period")  # fmt: skip
     parser.add_argument("--period", type=float, default=None, metavar="T",
@@ -52,8 +48,9 @@ def run(args: argparse.Namespace, command_line: str) -> int:
     out = Path(args.out)
     refuse_existing([out], args.force)
     records = _records(args)
+    target = _target(args)
     settings = SuiteSettings(
-        target_standard=_target(args)[0], target_parameters=_target(args)[1], periods=_periods(args),
+        target_standard=target[0], target_parameters=target[1], periods=_periods(args),
         damping=args.damping, spectrum=args.spectrum, rule=args.rule, fraction=args.fraction,
         period_range=_range(args), preset=_preset(args), structure_period=args.period,
     )  # fmt: skip
@@ -101,35 +98,10 @@ def _records(args: argparse.Namespace) -> list[Any]:
 
 
 def _target(args: argparse.Namespace) -> tuple[str, tuple[tuple[str, Any], ...]]:
-    if args.target_table:
-        rows = [line.replace(";", ",").split(",") for line in Path(args.target_table).read_text(encoding="utf-8").splitlines()]
-        pairs = []
-        for number, row in enumerate(rows, start=1):
-            if not any(cell.strip() for cell in row):
-                continue
-            try:
-                pairs.append((float(row[0]), float(row[1])))
-            except (ValueError, IndexError):
-                if pairs or number > 1:  # only the first line may be a header
-                    raise UsageError(f"--target-table line {number}: expected 'period, Sa', got {','.join(row)!r}") from None
-        return "table", (("periods_table", tuple(p for p, _ in pairs)), ("sa_table", tuple(s for _, s in pairs)))
-    standard, _, text = args.target.partition(":")
-    parameters = []
-    for item in filter(None, (part.strip() for part in text.split(","))):
-        name, equals, value = item.partition("=")
-        if not equals:
-            raise UsageError(f"--target {args.target!r}: {item!r} is not NAME=VALUE")
-        parameters.append((name.strip().lower(), _value(value.strip())))
-    return standard.strip(), tuple(parameters)
-
-
-def _value(text: str) -> Any:
-    for kind in (int, float):
-        try:
-            return kind(text)
-        except ValueError:
-            pass
-    return text
+    found = target_from_options(args)
+    if found is None:  # argparse requires one of the two; kept for callers building args by hand
+        raise UsageError("give --target STANDARD:NAME=VALUE,... or --target-table CSV")
+    return found
 
 
 def _periods(args: argparse.Namespace) -> tuple[float, ...]:

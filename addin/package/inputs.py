@@ -179,8 +179,51 @@ def settings_from_cells(
         project=tuple(project) or base.project,
         hardening=hardening,
         **processing,
+        **_target(get, base),
     )
     return record, settings
+
+
+def _target(get: Getter, base: ReportSettings) -> dict[str, Any]:
+    """The Target sheet's design spectrum: standard and name/value rows, or the period/Sa table; base's when blank."""
+    cell = get("target_standard")
+    if cell is None or _blank(cell):
+        return {"target_standard": base.target_standard, "target_parameters": base.target_parameters}
+    standard = str(_cells.text(cell, "the target-standard cell", "")).strip()
+    if standard.lower() == "table":
+        columns = [_column(get("target_table_periods")), _column(get("target_table_sa"))]
+        pairs = []
+        for row, (period, sa) in enumerate(zip(*columns), start=1):
+            if _blank(period) and _blank(sa):
+                continue
+            if not all(_is_number(v) for v in (period, sa)):
+                raise InputError(f"row {row} of the target table holds {period!r}, {sa!r}: give a period [s] and Sa [g]")
+            pairs.append((float(period), float(sa)))
+        parameters: tuple[tuple[str, Any], ...] = (
+            ("periods_table", tuple(p for p, _ in pairs)), ("sa_table", tuple(v for _, v in pairs)),
+        )  # fmt: skip
+        return {"target_standard": "table", "target_parameters": parameters}
+    found = []
+    for row, (name, value) in enumerate(zip(_column(get("target_names")), _column(get("target_values"))), start=1):
+        if _blank(name):
+            if not _blank(value):
+                raise InputError(f"row {row} of the target parameters has the value {value!r} but no name")
+            continue
+        if _blank(value):
+            raise InputError(f"row {row} of the target parameters names {str(name).strip()!r} but has no value")
+        found.append((str(name).strip().lower(), float(value) if _is_number(value) else str(value).strip()))
+    return {"target_standard": standard, "target_parameters": tuple(found)}
+
+
+def _column(cells: Any) -> list[Any]:
+    """The cells of a one-column range, top to bottom ([] when the workbook lacks it)."""
+    if cells is None:
+        return []
+    return [row[0] if isinstance(row, (list, tuple)) else row for row in cells]
+
+
+def _is_number(value: Any) -> bool:
+    return isinstance(value, (int, float)) and not isinstance(value, bool)
 
 
 def read_input_workbook(

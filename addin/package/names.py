@@ -65,6 +65,11 @@ INPUTS: tuple[Input, ...] = (
     Input("ductilities", "input_ductilities", "Yielding!$B$5:$E$5", ("gs_in_ductilities",)),
     Input("yield_damping", "input_yield_damping", "Yielding!$B$4", ("gs_in_yield_damping",)),
     Input("yield_periods", "input_yield_periods", "Yielding!$A$7:$A$26", ("gs_in_yield_periods",)),
+    Input("target_standard", "input_target_standard", "Target!$B$5", ("gs_in_target_standard",)),
+    Input("target_names", "input_target_names", "Target!$A$8:$A$13", ("gs_in_target_names",)),
+    Input("target_values", "input_target_values", "Target!$B$8:$B$13", ("gs_in_target_values",)),
+    Input("target_table_periods", "input_target_table_periods", "Target!$D$8:$D$107", ("gs_in_target_table_periods",)),
+    Input("target_table_sa", "input_target_table_sa", "Target!$E$8:$E$107", ("gs_in_target_table_sa",)),
 )
 
 _BY_KEY = {item.key: item for item in INPUTS}

@@ -14,6 +14,9 @@ DIR`` does the same). The calculation package has
 * ``Peaks``: one oscillator per row, ``STEP_PEAK`` cells and the ductility
   demand of a yielding oscillator for a strength reduction factor;
 * ``Yielding``: a constant-ductility spectrum (``STEP_DUCTILITY_SPECTRUM``);
+* ``Target``: a design (or target) spectrum for the result workbook
+  (``groundstep fill``): a standard in B5 and name/value rows, or a table of
+  period and Sa;
 * ``xlwings.conf``: the sheet xlwings reads workbook settings from; its
   ``UDF Modules`` entry names ``groundstep.addin.functions``.
 
@@ -102,6 +105,7 @@ def build_calculation_package() -> Workbook:
     _spectrum_sheet(book.create_sheet("Spectrum"))
     _peaks_sheet(book.create_sheet("Peaks"))
     _yielding_sheet(book.create_sheet("Yielding"))
+    _target_sheet(book.create_sheet("Target"))
     _config_sheet(book.create_sheet("xlwings.conf"))
     for name, reference in INPUT_NAMES.items():
         book.defined_names[name] = DefinedName(name, attr_text=reference)
@@ -267,6 +271,31 @@ def _yielding_sheet(sheet) -> None:
     )
     sheet.column_dimensions["A"].width = 18
     sheet.column_dimensions["G"].width = 40
+
+
+def _target_sheet(sheet) -> None:
+    _heading(
+        sheet,
+        "Design (target) spectrum for the result workbook",
+        "Read by 'groundstep fill': the Spectra sheet of the result shows this spectrum beside the record's. "
+        "Blank standard: none. ASCE7 takes sds, sd1 [g] and tl [s] (ASCE/SEI 7-16 §11.4.6); EN1998 takes ag [g], "
+        "ground_type A-E, spectrum_type, importance_factor, damping (EN 1998-1:2004 §3.2.2.2); "
+        "table takes the period and Sa [g] columns at right.",
+    )
+    sheet["A5"] = "Standard:"
+    sheet["B5"].fill = _INPUT_FILL
+    sheet["C5"] = "ASCE7, EN1998, table or blank"
+    for column, header in (("A", "Parameter"), ("B", "Value"), ("D", "Period T [s] (table)"), ("E", "Sa [g] (table)")):
+        sheet[f"{column}7"] = header
+        sheet[f"{column}7"].font = _BOLD
+    for row in range(8, 14):
+        for column in "AB":
+            sheet[f"{column}{row}"].fill = _INPUT_FILL
+    for row in range(8, 108):
+        for column in "DE":
+            sheet[f"{column}{row}"].fill = _INPUT_FILL
+    for letter, width in (("A", 20), ("B", 14), ("C", 30), ("D", 20), ("E", 16)):
+        sheet.column_dimensions[letter].width = width
 
 
 def _config_sheet(sheet) -> None:

@@ -50,6 +50,7 @@ from groundstep.core.units import ACCELERATION_UNITS, STANDARD_GRAVITY, OutputUn
 
 from . import sheets
 from .layout import FORMAT_ID, WorkbookLayout
+from .target import target_blocks, target_label, target_points, target_spectrum
 
 __all__ = [
     "PROJECT_KEYS",
@@ -128,6 +129,11 @@ class ReportSettings:
         The constant-ductility spectrum of the Ductility sheet (the
         template's Yielding sheet): target ductilities (>= 1), periods [s]
         and damping ratio; no sheet when either tuple is empty.
+    target_standard, target_parameters : str or None, tuple of (str, object)
+        A design (or target) spectrum shown beside the record's on the
+        Spectra sheet: ``groundstep.core.design_spectrum(periods,
+        target_standard, **dict(target_parameters))`` (``"ASCE7"``,
+        ``"EN1998"`` or ``"table"``; accelerations in g); None: no target.
     """
 
     periods: tuple[float, ...] = field(default_factory=_default_periods)
@@ -145,6 +151,8 @@ class ReportSettings:
     ductilities: tuple[float, ...] = ()
     yield_periods: tuple[float, ...] = ()
     yield_damping: float = DEFAULT_DAMPING
+    target_standard: str | None = None
+    target_parameters: tuple[tuple[str, Any], ...] = ()
 
 
 @dataclass(frozen=True, slots=True)
@@ -221,6 +229,7 @@ def build_report(
     replay = linear_response(record, *verification[:2], verification[2:], max_step_ratio=_VERIFY_STEP_RATIO)
     window = verification_window(replay)
     findings = _findings(record, settings)
+    target, target_notes = target_spectrum(settings.target_standard, settings.target_parameters, spectrum.periods)
     layout = sheets.result_layout(
         record.n, spectrum.periods.size, tuple(float(d) for d in spectrum.dampings), len(peaks),
         out.acceleration, out.length, len(yielding), n_raw=raw.n if steps else 0,
@@ -231,6 +240,7 @@ def build_report(
         n_ductility_periods=ductility.periods.size if ductility is not None else 0,
         n_rigid=int(np.argmax(spectrum.periods > 0.0)) if spectrum.periods.max() > 0.0 else spectrum.periods.size,
         verification_window=window,
+        target_label=target_label(target), n_target_points=target_points(target),
     )  # fmt: skip
     table = spectrum_table(spectrum, out)
     content: dict[str, dict[str, Any]] = {
@@ -263,7 +273,12 @@ def build_report(
         content.update(_ductility_blocks(ductility, settings, method))
     if yielding:
         content["yielding_summary"] = _yielding_summary(yielding_oscillators, yielding, out)
-    return Report(layout, content, _headline(record, spectrum, out, content, verification))
+    headline = _headline(record, spectrum, out, content, verification)
+    if target is not None:
+        content["spectra_table"]["target"] = target.sa_in(out.acceleration).tolist()
+        content.update(target_blocks(settings.target_parameters, target, target_notes))
+        headline["target"] = target.describe()
+    return Report(layout, content, headline)
 
 
 def _findings(record: Record, settings: ReportSettings) -> dict[str, list[str]]:

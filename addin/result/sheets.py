@@ -133,6 +133,8 @@ def result_layout(
     ductilities: tuple[float, ...] = (),
     n_ductility_periods: int = 0,
     verification_window: tuple[int, int] | None = None,
+    target_label: str = "",
+    n_target_points: int = 0,
 ) -> WorkbookLayout:
     """The result workbook's layout for the given sizes and units.
 
@@ -164,6 +166,12 @@ def result_layout(
     n_rigid : int, default 0
         Leading spectrum periods equal to 0 (rigid: PSA = PGA): kept in the
         table, left out of the charts (a logarithmic axis cannot show 0).
+    target_label : str, default ""
+        The document of a design (or target) spectrum (e.g. ``"ASCE/SEI
+        7-16"``): a target Sa column ends the Spectra table, the PSA chart
+        gets its series and the Audit sheet its block; "" for none.
+    n_target_points : int, default 0
+        Points of a user-defined target table, listed on the Audit sheet.
     n_findings : int, default 1
         Rows of the Summary's plausibility notes (``core.plausibility``; one
         row saying "none" when there is nothing to note).
@@ -176,12 +184,12 @@ def result_layout(
         (
             _summary(dampings, unit, length_unit, velocity_unit, n_yielding, n_findings),
             _record(n_samples, unit, length_unit, velocity_unit, n_raw),
-            _spectra(n_periods, dampings, unit, length_unit, velocity_unit, n_rigid),
+            _spectra(n_periods, dampings, unit, length_unit, velocity_unit, n_rigid, target_label),
             _peaks(n_oscillators, unit, length_unit, velocity_unit, n_yielding),
             *((_ductility(ductilities, n_ductility_periods),) if ductilities and n_ductility_periods else ()),
             _measures(n_samples, unit, length_unit, velocity_unit, n_raw > 0, n_frequencies, n_chart_frequencies),
             _verification(n_samples, verification_window or (0, n_samples)),
-            _audit(n_steps),
+            _audit(n_steps, target_label, n_target_points),
         )
     )
 
@@ -369,7 +377,7 @@ def _measures(n_samples, unit, length_unit, velocity_unit, processed, n_frequenc
     return Sheet(MEASURES, "Ground-motion measures", blocks, charts, note=note)
 
 
-def _spectra(n_periods, dampings, unit, length_unit, velocity_unit, n_rigid=0) -> Sheet:
+def _spectra(n_periods, dampings, unit, length_unit, velocity_unit, n_rigid=0, target_label="") -> Sheet:
     columns = [Column("period", "Period", "s", FIXED4, 10.0)]
     for index, damping in enumerate(dampings):
         label = damping_label(damping)
@@ -381,12 +389,16 @@ def _spectra(n_periods, dampings, unit, length_unit, velocity_unit, n_rigid=0) -
             Column(f"exact_{index}", f"PSA vs exact (Nigam & Jennings 1969) {label}", "-", SCIENTIFIC, 17.0),
             Column(f"exact_flag_{index}", f"Above {EXACT_TOLERANCE:.0%}?", "", TEXT, 10.0),
         ]
+    target = ((("target", f"Target: {target_label}"),) if target_label else ())
+    if target_label:  # last, so the damping columns keep their places
+        columns.append(Column("target", f"Target Sa, {target_label} ({AUDIT} sheet)", unit, SCIENTIFIC, 17.0))
     table = Table("spectra_table", "Elastic response spectra", 3, 1, tuple(columns), n_periods, checked=True)
     right = len(columns) + 2
     charts = tuple(
         Chart(
             f"{quantity}_chart", title, "spectra_table", "period",
-            tuple((f"{quantity}_{i}", damping_label(d)) for i, d in enumerate(dampings)),
+            tuple((f"{quantity}_{i}", damping_label(d)) for i, d in enumerate(dampings))
+            + (target if quantity == "psa" else ()),
             "Period [s] (logarithmic)", axis, 3 + offset, right, log_x=True, skip_rows=n_rigid,
         )
         for quantity, title, axis, offset in (
@@ -567,7 +579,7 @@ def _verification(n_samples: int, window: tuple[int, int]) -> Sheet:
                  (inputs, constants, check, start_state, steps), note=note)  # fmt: skip
 
 
-def _audit(n_steps: int) -> Sheet:
+def _audit(n_steps: int, target_label: str = "", n_target_points: int = 0) -> Sheet:
     fields = Fields(
         "audit", "Provenance", 3, 1,
         (
@@ -608,4 +620,28 @@ def _audit(n_steps: int) -> Sheet:
         "processing_table", title, 27, 1, (Column("step", "Step: operation(arguments) [library]", "", TEXT, 46.0),),
         n_steps, checked=True,
     )  # fmt: skip
-    return Sheet(AUDIT, "Audit trail", (fields, settings, processing))
+    blocks: tuple[Fields | Table | FormulaTable, ...] = (fields, settings, processing)
+    if target_label:
+        blocks += _target_blocks(30 + n_steps, n_target_points)
+    return Sheet(AUDIT, "Audit trail", blocks)
+
+
+def _target_blocks(row: int, n_points: int) -> tuple[Fields | Table, ...]:
+    """The Audit sheet's design (target) spectrum below the processing lines; verify rebuilds it from these."""
+    fields = Fields(
+        "target", "Design (target) spectrum on the Spectra sheet (verify rebuilds it from these cells)", row, 1,
+        (
+            Field("target_standard", "Standard (groundstep.core.design_spectrum)", "", TEXT),
+            Field("target_parameters", "Parameters (accelerations in g, periods in s)", "", TEXT),
+            Field("target_description", "Edition, clause and derived values", "", TEXT),
+            Field("target_notes", "Notes", "", TEXT),
+        ),
+        checked=True,
+    )  # fmt: skip
+    if not n_points:
+        return (fields,)
+    table = Table(
+        "target_input", "User-defined target (log-log interpolation)", row + 7, 1,
+        (Column("period", "Period", "s", GENERAL), Column("sa", "Sa", "g", GENERAL)), n_points,
+    )  # fmt: skip
+    return (fields, table)

@@ -34,6 +34,7 @@ from groundstep.core.units import ACCELERATION_UNITS
 
 from . import suite_sheets
 from .content import Report
+from .target import parameters_text
 
 __all__ = ["PRESETS_NOTE", "SUITE_SPECTRA", "SuiteRecord", "SuiteSettings", "build_suite", "parameters_text"]
 
@@ -107,11 +108,6 @@ class SuiteSettings:
     preset: str | None = None
     structure_period: float | None = None
     factor_limits: tuple[float, float] = (0.25, 4.0)
-
-
-def parameters_text(parameters: tuple[tuple[str, Any], ...]) -> str:
-    """``name=value, ...`` of a standard's parameters (values as Python literals; tables left out)."""
-    return ", ".join(f"{name}={value!r}" for name, value in parameters if not isinstance(value, tuple))
 
 
 def build_suite(records: list[SuiteRecord], settings: SuiteSettings, *, command: str = "",

@@ -14,7 +14,6 @@ or changed is a mismatch: the spectra cannot be rechecked without it.
 
 from __future__ import annotations
 
-import ast
 import os
 from typing import Any
 
@@ -24,6 +23,7 @@ from . import layout as lay
 from .render import CellRecorder, formula_fields, render_block
 from .suite_content import SuiteRecord, SuiteSettings, build_suite
 from .suite_sheets import SUITE_AUDIT
+from .target import parameters_from_text
 from .verify import BlockCheck, NotAResultWorkbook, _compare, _Names
 
 __all__ = ["verify_suite"]
@@ -89,12 +89,9 @@ def _settings(names: _Names) -> SuiteSettings:
 def _parameters(text: str) -> tuple[tuple[str, Any], ...]:
     """``name=value, ...`` (values as Python literals) back into pairs."""
     try:
-        tree = ast.parse(f"f({text})", mode="eval").body
-        if not isinstance(tree, ast.Call) or tree.args:
-            raise ValueError("not name=value, ...")
-        return tuple((str(k.arg), ast.literal_eval(k.value)) for k in tree.keywords)
-    except (SyntaxError, ValueError) as exc:
-        raise NotAResultWorkbook(f"the target parameters on the {SUITE_AUDIT} sheet cannot be read ({text!r}: {exc})") from None
+        return parameters_from_text(text)
+    except ValueError as exc:
+        raise NotAResultWorkbook(f"the target parameters on the {SUITE_AUDIT} sheet cannot be read: {exc}") from None
 
 
 def _optional(names: _Names, key: str) -> float | None:

@@ -37,6 +37,7 @@ from . import sheets
 from .content import PROJECT_KEYS, Oscillator, ReportSettings, build_report
 from .guard import UnsafeWorkbook, check_package
 from .render import CellRecorder, block_cells, column_letter, formula_fields, render_block
+from .target import parameters_from_text
 
 __all__ = ["BlockCheck", "NotAResultWorkbook", "RELATIVE_TOLERANCE", "verify_workbook"]
 
@@ -223,9 +224,28 @@ def _read_inputs(names: _Names) -> tuple[Record, ReportSettings, dict[str, str]]
         yield_periods=tuple(names.numbers("ductility_table_period", required=False)),
         yield_damping=names.number("yield_damping") if names.value("yield_damping", required=False) is not None
         else DEFAULT_DAMPING,
+        **_read_target(names),
     )
     audit = {key: str(names.value(key, required=False) or "") for key in ("record_sha256", "command", "record_source")}
     return record, settings, audit
+
+
+def _read_target(names: _Names) -> dict[str, Any]:
+    """The target spectrum's standard and parameters from the Audit sheet (a table from its target table)."""
+    standard = names.value("target_standard", required=False)
+    if standard in (None, ""):
+        return {}
+    if str(standard) == "table":
+        parameters: tuple[tuple[str, Any], ...] = (
+            ("periods_table", tuple(names.numbers("target_input_period"))),
+            ("sa_table", tuple(names.numbers("target_input_sa"))),
+        )
+    else:
+        try:
+            parameters = parameters_from_text(str(names.value("target_parameters") or ""))
+        except ValueError as exc:
+            raise NotAResultWorkbook(f"cell {lay.NAME_PREFIX}target_parameters on the {sheets.AUDIT} sheet: {exc}") from None
+    return {"target_standard": str(standard), "target_parameters": parameters}
 
 
 def _listed_numbers(names: _Names, key: str) -> tuple[float, ...]:

@@ -5,13 +5,17 @@ A sheet of 500 ``STEP_PEAK`` cells over one record hands Python the same
 the cells as received; each result is kept under the record's key plus the
 oscillator and options, so recalculating an unchanged sheet computes nothing.
 
-Keys are built from a SHA-256 digest of the marshalled cell values (exact:
-two ranges share a key only when every cell is equal and of the same type),
-so a changed sample anywhere in the record gives a new key. Each cache is a
-least-recently-used map of bounded length guarded by a lock; a value is
-computed outside the lock, so two threads that miss on the same key at the
-same moment may both compute it (same inputs, same result), and neither
-blocks the other.
+Keys are built from a SHA-256 digest of the cell values (exact: two ranges
+share a key only when every cell is equal and of the same type, see
+`digest` and `is_plain`), so a changed sample anywhere in the record gives a
+new key. Each cache is a least-recently-used map of bounded length guarded
+by a lock; a value is computed outside the lock, so two threads that miss on
+the same key at the same moment may both compute it (same inputs, same
+result), and neither blocks the other.
+
+`ASKED` remembers which periods ``STEP_PEAK`` cells asked for, per damping
+and method, so the first cell over a new (edited) record computes all of
+them in one spectrum pass (see ``convert.peaks``).
 """
 
 from __future__ import annotations
@@ -137,23 +141,120 @@ def size_of(value: Any, _depth: int = 0) -> int:
     return sys.getsizeof(value)
 
 
+#: Cell values whose marshal bytes say their type (``bool`` is written apart from ``int``).
+_PLAIN_SCALARS = frozenset({float, int, str, bool, type(None)})
+
+
 def digest(cells: Any) -> bytes:
     """The SHA-256 digest of cell values as the spreadsheet passed them.
 
-    SHA-256 rather than BLAKE2b: processors with SHA extensions hash it about
-    twice as fast (measured by benchmarks/bench_functions.py's warm figure).
+    Exact for plain cells (`is_plain`): two plain ranges share a digest only
+    when every cell is equal and of the same type (1 and 1.0, the text "1"
+    and the number 1, NaN and a blank all differ). Plain cells are written
+    by ``marshal`` version 2, which tags every value with its type and
+    writes floats as their 8 bytes; version 2 keeps no back-references,
+    which makes it 2-3x faster than the newest version on a 20,000-cell
+    column (benchmarks/bench_functions.py prints both).
 
-    Values ``marshal`` can write (numbers, text, None, Booleans, lists) are
-    hashed from its bytes; anything else (dates) from ``pickle``.
+    A numpy array is digested from its dtype, shape and bytes. Cells marshal
+    refuses (dates) go through ``pickle``. Other cells that are not plain
+    (numpy scalars, bytes) are written by marshal as raw bytes without their
+    type, so two of them may share a digest: store an entry under this
+    digest only for plain cells, else under `strict_digest` (as
+    ``convert.record`` does).
+
+    SHA-256 rather than BLAKE2b: processors with SHA extensions hash it about
+    twice as fast.
     """
+    if isinstance(cells, np.ndarray) and cells.dtype != object:
+        header = f"a{cells.dtype.str}{cells.shape}|".encode()
+        return hashlib.sha256(header + np.ascontiguousarray(cells).tobytes()).digest()
     try:
-        payload = marshal.dumps(cells)
+        payload = b"m" + marshal.dumps(cells, 2)
     except ValueError:
-        payload = pickle.dumps(cells, protocol=pickle.HIGHEST_PROTOCOL)
+        return strict_digest(cells)
     return hashlib.sha256(payload).digest()
+
+
+def strict_digest(cells: Any) -> bytes:
+    """The SHA-256 digest of the cells' pickle: exact for any cells pickle writes (slower than `digest`)."""
+    return hashlib.sha256(b"p" + pickle.dumps(cells, protocol=pickle.HIGHEST_PROTOCOL)).digest()
+
+
+def is_plain(cells: Any) -> bool:
+    """Whether `digest` of these cells is exact: lists/tuples of floats, ints, text, Booleans and blanks.
+
+    A numpy array that does not hold Python objects is plain too (its dtype
+    and shape are digested). This walks every cell: call it only when an
+    entry is about to be stored, never on the lookup path.
+    """
+    if isinstance(cells, np.ndarray):
+        return cells.dtype != object
+    if type(cells) not in (list, tuple):
+        return type(cells) in _PLAIN_SCALARS
+    kinds = set(map(type, cells))
+    if kinds <= _PLAIN_SCALARS:
+        return True
+    if not kinds <= _PLAIN_SCALARS | {list, tuple}:
+        return False
+    return all(type(row) in _PLAIN_SCALARS or is_plain(row) for row in cells)
+
+
+class PeriodMemory:
+    """The periods asked per setting (damping, method), and which records each setting has seen.
+
+    ``STEP_PEAK`` cells arrive one at a time, so a sheet's first
+    recalculation cannot know the periods to come; when the record changes,
+    the next recalculation asks the same periods again. The first cell of a
+    setting over a record not seen before is handed every period remembered
+    for that setting, to compute in one spectrum pass.
+
+    Parameters
+    ----------
+    periods : int
+        Most recently asked periods kept per setting.
+    settings : int
+        Settings kept.
+    records : int
+        (record, setting) pairs remembered as seen.
+    """
+
+    def __init__(self, periods: int = 2048, settings: int = 64, records: int = 1024) -> None:
+        self.limits = (int(periods), int(settings), int(records))
+        self._asked: OrderedDict[Hashable, OrderedDict[float, None]] = OrderedDict()
+        self._seen: OrderedDict[Hashable, None] = OrderedDict()
+        self._lock = threading.Lock()
+
+    def batch(self, record_key: Hashable, setting: Hashable, period: float) -> tuple[float, ...]:
+        """`period` first, then (on the first call for this record and setting) every period remembered."""
+        most_periods, most_settings, most_records = self.limits
+        with self._lock:
+            asked = self._asked.setdefault(setting, OrderedDict())
+            self._asked.move_to_end(setting)
+            pair = (record_key, setting)
+            first = pair not in self._seen
+            self._seen[pair] = None
+            self._seen.move_to_end(pair)
+            others = tuple(p for p in asked if p != period) if first else ()
+            asked[period] = None
+            asked.move_to_end(period)
+            for store, most in ((asked, most_periods), (self._asked, most_settings), (self._seen, most_records)):
+                while len(store) > most:
+                    store.popitem(last=False)
+        return (period, *others)
+
+    def clear(self) -> None:
+        """Forget every period and record."""
+        with self._lock:
+            self._asked.clear()
+            self._seen.clear()
+
+
+ASKED = PeriodMemory()
 
 
 def clear_all() -> None:
     """Empty every cache (the benchmark's cold start; tests that count parses)."""
     for cache in (RECORDS, RESULTS, HISTORIES):
         cache.clear()
+    ASKED.clear()

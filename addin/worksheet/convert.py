@@ -13,7 +13,7 @@ from typing import Any
 
 import numpy as np
 
-from groundstep.core import Record, collect_warnings
+from groundstep.core import Record, collect_warnings, elastic_spectrum
 from groundstep.core.methods import Method, resolve_method
 from groundstep.core.units import ACCELERATION_UNITS, LENGTH_UNITS, VELOCITY_UNITS, OutputUnits, output_units
 
@@ -28,6 +28,7 @@ __all__ = [
     "label",
     "method",
     "method_key",
+    "peaks",
     "quiet",
     "record",
     "strength",
@@ -44,11 +45,61 @@ def record(accel: Cell, dt: Cell, unit: Cell) -> tuple[Record, tuple[Any, ...]]:
     """The record of the cells (parsed once per distinct cells, time step and unit) and its cache key."""
     step = cells.positive(dt, "the time step", "s")
     name = cells.unit(unit, "the record unit", ACCELERATION_UNITS)
-    key = ("record", cache.digest(accel), step, name)
-    found = cache.RECORDS.get_or_compute(
-        key, lambda: Record(cells.numbers(accel, "the acceleration range", min_count=2), step, name)
-    )
-    return found, key
+
+    def parse(plain_only: bool) -> Record:
+        if plain_only and not cache.is_plain(accel):
+            raise _NotPlain
+        return Record(cells.numbers(accel, "the acceleration range", min_count=2), step, name)
+
+    key: tuple[Any, ...] = ("record", cache.digest(accel), step, name)
+    try:  # stored under the fast digest only when it is exact for these cells
+        return cache.RECORDS.get_or_compute(key, lambda: parse(True)), key
+    except _NotPlain:
+        key = ("record", cache.strict_digest(accel), step, name)
+        return cache.RECORDS.get_or_compute(key, lambda: parse(False)), key
+
+
+class _NotPlain(Exception):
+    """Cells whose fast digest is not exact (numpy scalars, bytes): keyed by the strict digest instead."""
+
+
+#: Rows of an ElasticSpectrum -> the attributes of a linear response's peaks that STEP_PEAK reads.
+_SPECTRUM_PEAKS = {
+    "sd": "peak_displacement",
+    "sv": "peak_velocity",
+    "sa": "peak_total_acceleration",
+    "psv": "pseudo_velocity",
+    "psa": "pseudo_acceleration",
+}
+
+
+def peaks(record: Record, key: Hashable, oscillator: tuple[float, float], resolved: Method) -> dict[str, Any]:
+    """Peaks (SD, SV, SA, PSV, PSA and the sub-step count) of one oscillator, from `elastic_spectrum`.
+
+    The first cell of a damping and method over a record not seen before
+    computes every period other cells asked for with that damping and method
+    (`cache.ASKED`) in the same spectrum pass and stores each under the key
+    ``STEP_PEAK`` looks up: after an edit of the record, a sheet of 500
+    cells costs one spectrum instead of 500 oscillators. A period's peaks do
+    not depend on the other periods of the pass (each oscillator is stepped
+    alone; tests/test_functions.py pins batched and single values equal).
+    """
+    period, damping = oscillator
+    method_id = method_key(resolved)
+    batch = cache.ASKED.batch(key, (damping, method_id), period)
+    spectrum = quiet(elastic_spectrum, record, np.array(batch), damping, resolved)
+    found: list[dict[str, Any]] = []
+    for index in range(len(batch)):
+        values = {attribute: float(getattr(spectrum, row)[0, index]) for row, attribute in _SPECTRUM_PEAKS.items()}
+        values["substeps"] = int(spectrum.substeps[0, index])
+        found.append(values)
+    for each, values in zip(batch[1:], found[1:]):
+        cache.RESULTS.get_or_compute(("peak", key, (each, damping), method_id), _constant(values))
+    return found[0]
+
+
+def _constant(value: dict[str, Any]) -> Callable[[], dict[str, Any]]:
+    return lambda: value
 
 
 def choice(value: Cell, quantities: dict[str, Quantity], what: str = "the quantity") -> Quantity:

@@ -87,10 +87,16 @@ def STEP_PEAK(
     record, key = convert.record(accel, dt, unit)
     chosen, out = convert.choice(quantity, PEAK_QUANTITIES), convert.units(record.unit, accel_unit_out, length_unit_out)
     oscillator, resolved = _oscillator(period, damping), convert.method(method)
-    peaks = RESULTS.get_or_compute(
-        ("peak", key, oscillator, convert.method_key(resolved)),
-        lambda: convert.summary(convert.quiet(linear_response, record, *oscillator, resolved), PEAK_QUANTITIES),
-    )
+    if chosen.kind == "time":  # times of the peaks: the one-oscillator history kernel records them
+        peaks = RESULTS.get_or_compute(
+            ("peak times", key, oscillator, convert.method_key(resolved)),
+            lambda: convert.summary(convert.quiet(linear_response, record, *oscillator, resolved), PEAK_QUANTITIES),
+        )
+    else:  # amplitudes: the spectrum pass, shared by the cells of one damping and method (convert.peaks)
+        peaks = RESULTS.get_or_compute(
+            ("peak", key, oscillator, convert.method_key(resolved)),
+            lambda: convert.peaks(record, key, oscillator, resolved),
+        )
     return convert.to_unit(peaks[chosen.attribute], chosen.kind, out)
 
 
