@@ -91,6 +91,16 @@ def workbooks(tmp_path_factory):
                  "--oscillator", "mast:0.7:0.03:3"]) == 0  # fmt: skip
     made["fill"] = folder / "fill.xlsx"
 
+    long = synthetic_record(15.0, 0.005, pga=1.5, unit="m/s2", seed=11)  # 3001 samples: a 2000-step window
+    source = openpyxl.Workbook()
+    source.active.title = "Data"
+    for a in long.accel_in("m/s2"):
+        source.active.append([float(a)])
+    source.save(folder / "long_input.xlsx")
+    assert main(["fill", str(folder / "long_input.xlsx"), "--out", str(folder / "long.xlsx"), "--record",
+                 f"Data!A1:A{long.n}", "--dt", "0.005", "--unit", "m/s2"]) == 0  # fmt: skip
+    made["long"] = folder / "long.xlsx"
+
     text = folder / "rec.txt"
     np.savetxt(text, synthetic_record(5.0, 0.005, pga=0.15, seed=3).accel_in("g"), fmt="%.7g")
     assert main(["spectrum", str(text), "--dt", "0.005", "--unit", "g", "--format", "xlsx", "--out-dir", str(folder), "--quiet"]) == 0
@@ -98,7 +108,7 @@ def workbooks(tmp_path_factory):
     return {key: (path, recalculate(path, folder / "calc")) for key, path in made.items()}
 
 
-@pytest.mark.parametrize("key", ["demo", "fill", "spectrum"])
+@pytest.mark.parametrize("key", ["demo", "fill", "spectrum", "long"])
 def test_formula_peaks_equal_python_peaks(workbooks, key):
     """LibreOffice's formula peaks equal groundstep's to 1e-9 relative and the pass cells say pass."""
     _, calculated = workbooks[key]
@@ -133,7 +143,7 @@ def test_no_cell_shows_an_error(workbooks, key):
 
 
 def test_recalculated_history_matches_linear_response(workbooks):
-    """The sheet's u column, step by step, equals linear_response's displacement history (demo record)."""
+    """The sheet's u column, step by step, equals linear_response's displacement history over its steps (demo)."""
     written, calculated = workbooks["demo"]
     book = openpyxl.load_workbook(calculated, data_only=True)
     period = _name(book, "verification_period").value
@@ -144,8 +154,10 @@ def test_recalculated_history_matches_linear_response(workbooks):
         warnings.simplefilter("error")  # no sub-steps may be needed
         direct = linear_response(record, period, damping, "average")
     column = [row[0].value for row in _name(book, "verification_steps_u")]
+    start, rows = _name(book, "verification_first_step").value, _name(book, "verification_steps_replayed").value
     # LibreOffice stores 15 significant digits; 1e-9 of the peak bounds round-off over 2000 steps
-    np.testing.assert_allclose(column, direct.displacement, rtol=0, atol=1e-9 * direct.peak_displacement)
+    np.testing.assert_allclose(column, direct.displacement[start:start + rows], rtol=0,
+                               atol=1e-9 * direct.peak_displacement)  # fmt: skip
 
 
 def test_reviewer_changes_reach_the_pass_cell(workbooks, tmp_path):
@@ -179,10 +191,26 @@ def test_yielding_block_survives_recalculation(workbooks, key):
     assert _name(after, "largest_ductility").value == pytest.approx(_name(before, "largest_ductility").value, rel=1e-14)
 
 
-@pytest.mark.parametrize("key", ["demo", "fill", "spectrum"])
+@pytest.mark.parametrize("key", ["demo", "fill", "spectrum", "long"])
 def test_workbook_saved_by_libreoffice_still_verifies(workbooks, key):
     """A result workbook opened and saved by LibreOffice Calc (15 significant digits) verifies (before: digest mismatch)."""
     from groundstep.addin.result.verify import verify_workbook
 
     _, saved = workbooks[key]
     assert [check.line() for check in verify_workbook(saved) if not check.ok] == []
+
+
+def test_window_replay_matches_linear_response(workbooks):
+    """A record longer than the window: the sheet's u column equals linear_response's history over the window."""
+    _, calculated = workbooks["long"]
+    book = openpyxl.load_workbook(calculated, data_only=True)
+    start = _name(book, "verification_first_step").value
+    rows = _name(book, "verification_steps_replayed").value
+    samples = [row[0].value for row in _name(book, "record_table_accel")]
+    assert start > 0 and rows == 2000 and len(samples) == 3001  # the window is used, not the whole record
+    record = stored_record(Record(samples, _name(book, "dt").value, _name(book, "record_unit").value))
+    direct = linear_response(record, _name(book, "verification_period").value,
+                             _name(book, "verification_damping").value, "average")  # fmt: skip
+    column = [row[0].value for row in _name(book, "verification_steps_u")]
+    # LibreOffice stores 15 significant digits; 1e-9 of the peak bounds round-off over 2000 steps
+    np.testing.assert_allclose(column, direct.displacement[start:start + rows], rtol=0, atol=1e-9 * direct.peak_displacement)

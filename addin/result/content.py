@@ -61,6 +61,7 @@ __all__ = [
     "processed_record",
     "spectrum_table",
     "stored_record",
+    "verification_window",
     "yielding_method",
     "yielding_step_ratio",
 ]
@@ -226,6 +227,8 @@ def build_report(
     shift = _time_shift(raw, record)
     fourier = _fourier_blocks(record, out)
     verification = _verification_oscillator(record, settings, method)
+    replay = linear_response(record, *verification[:2], verification[2:], max_step_ratio=_VERIFY_STEP_RATIO)
+    window = verification_window(replay)
     findings = _findings(record, settings)
     target, target_notes = target_spectrum(settings.target_standard, settings.target_parameters, spectrum.periods)
     layout = sheets.result_layout(
@@ -237,6 +240,7 @@ def build_report(
         ductilities=tuple(float(d) for d in ductility.ductilities) if ductility is not None else (),
         n_ductility_periods=ductility.periods.size if ductility is not None else 0,
         n_rigid=int(np.argmax(spectrum.periods > 0.0)) if spectrum.periods.max() > 0.0 else spectrum.periods.size,
+        verification_window=window,
         target_label=target_label(target), n_target_points=target_points(target),
     )  # fmt: skip
     table = spectrum_table(spectrum, out)
@@ -256,7 +260,7 @@ def build_report(
         "spectra_table": _spectra_columns(table, spectrum, exact),
         "peaks_table": _peaks_table(settings.oscillators, peaks, out),
         "yielding_table": _yielding_table(yielding_oscillators, yielding, out, settings.hardening, method),
-        **_verification_blocks(record, *verification),
+        **_verification_blocks(replay, window, *verification),
         "audit": {
             **_audit(raw, command, source, created),
             "reviewed": " / ".join(project.get(key, "") or "-" for key in PROJECT_KEYS[5:]),
@@ -435,8 +439,53 @@ def _peaks_table(oscillators: tuple[Oscillator, ...], peaks: list[LinearResponse
     }
 
 
-def _verification_blocks(record: Record, period: float, damping: float, beta: float, gamma: float) -> dict[str, dict[str, Any]]:
-    check = linear_response(record, period, damping, (beta, gamma), max_step_ratio=_VERIFY_STEP_RATIO)
+def verification_window(response: LinearResponse, length: int = sheets.VERIFY_WINDOW) -> tuple[int, int]:
+    """(first step, steps) of the Verification sheet's replay of `response`.
+
+    The whole record when it has at most `length` samples; otherwise
+    `length` steps holding the peaks of u, u̇ and ü + ü_g (centred between
+    the first and last of them), or centred on the peak of u when those
+    peaks lie `length` steps or more apart.
+
+    Parameters
+    ----------
+    response : LinearResponse
+        The Verification oscillator's response (no sub-steps).
+    length : int, default ``sheets.VERIFY_WINDOW``
+        Most steps the sheet replays.
+
+    Returns
+    -------
+    tuple of int
+        First step (0 at the record's first sample) and number of steps.
+
+    Examples
+    --------
+    >>> from groundstep.core import Record, linear_response
+    >>> response = linear_response(Record([0.0, 1.0, 0.5, 0.0, 0.0], 0.01, "m/s2"), 1.0, 0.05)
+    >>> verification_window(response, length=3)
+    (0, 3)
+    """
+    n = response.time.size
+    if n <= length:
+        return 0, n
+    peaks = [int(np.argmax(np.abs(h))) for h in (response.displacement, response.velocity, response.total_acceleration)]
+    low, high = min(peaks), max(peaks)
+    if high - low >= length:
+        low = high = peaks[0]
+    start = low - (length - 1 - (high - low)) // 2
+    return min(max(start, 0), n - length), length
+
+
+def _verification_blocks(
+    replay: LinearResponse, window: tuple[int, int], period: float, damping: float, beta: float, gamma: float
+) -> dict[str, dict[str, Any]]:
+    start, rows = window
+    steps = slice(start, start + rows)
+    histories = {"u": replay.displacement, "v": replay.velocity, "t": replay.total_acceleration}
+    peaks = {q: float(np.max(np.abs(h[steps]))) for q, h in histories.items()}
+    whole = {"u": replay.peak_displacement, "v": replay.peak_velocity, "t": replay.peak_total_acceleration}
+    inside = [name for q, name in (("u", "u"), ("v", "u̇"), ("t", "ü + ü_g")) if peaks[q] == whole[q]]
     return {
         "verification_inputs": {
             "verification_period": period,
@@ -446,10 +495,14 @@ def _verification_blocks(record: Record, period: float, damping: float, beta: fl
             "verification_tolerance": sheets.VERIFY_TOLERANCE,
         },
         "verification_constants": {},
-        "verification_check": {
-            "python_u": check.peak_displacement,
-            "python_v": check.peak_velocity,
-            "python_t": check.peak_total_acceleration,
+        "verification_check": {f"python_{q}": value for q, value in peaks.items()},
+        "verification_start": {
+            "verification_first_step": start,
+            "verification_steps_replayed": rows,
+            "verification_record_steps": int(replay.time.size),
+            "verification_start_u": float(replay.displacement[start]),
+            "verification_start_v": float(replay.velocity[start]),
+            "verification_window": (", ".join(inside) if inside else "none") + " (of u, u̇, ü + ü_g)",
         },
         "verification_steps": {},
     }

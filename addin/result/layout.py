@@ -129,6 +129,8 @@ class FormulaColumn:
 class FormulaTable:
     """A table of formulas; ``{rr}`` refers to the same data row of table `source` on sheet `source_sheet`.
 
+    `source_start` data rows of `source` are skipped first: the table's first
+    row then faces the source's row ``source_start + 1`` (a window of it).
     `checked`: ``verify`` compares every formula's text with the layout's.
     """
 
@@ -141,6 +143,7 @@ class FormulaTable:
     source_sheet: str = ""
     source: str = ""
     checked: bool = True
+    source_start: int = 0
 
 
 @dataclass(frozen=True, slots=True)

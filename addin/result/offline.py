@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import os
 from collections.abc import Sequence
+from copy import copy
 from pathlib import Path
 from typing import Any
 
@@ -45,15 +46,22 @@ class OpenpyxlWriter:
 
     def write_cells(self, sheet: str, row: int, column: int, values: Sequence[Sequence[Any]], number_format, bold) -> None:
         ws = self.book[sheet]
+        style = None  # the first cell's style, shared by the rest (openpyxl resolves a format per assignment)
         for i, line in enumerate(values):
             for j, value in enumerate(line):
                 cell = ws.cell(row=row + i, column=column + j, value=value)
                 if isinstance(value, str) and not isinstance(value, Formula):
                     cell.data_type = "s"  # text stays text whatever its first character
-                if number_format:
-                    cell.number_format = number_format
-                if bold:
-                    cell.font = _BOLD
+                if not (number_format and number_format != lay.GENERAL) and not bold:
+                    continue  # General, not bold: the default style
+                if style is None:
+                    if number_format:
+                        cell.number_format = number_format
+                    if bold:
+                        cell.font = _BOLD
+                    style = cell._style
+                else:
+                    cell._style = copy(style)
 
     def define_name(self, name: str, sheet: str, reference: str) -> None:
         self.book.defined_names[name] = DefinedName(name, attr_text=f"{sheet}!{reference}")

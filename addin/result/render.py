@@ -130,7 +130,7 @@ def render_block(sheet: lay.Sheet, block, values: dict[str, Any], writer: SheetW
             continue
         if isinstance(block, lay.FormulaTable):
             letters = {c.key: column_letter(block.column + i) for i, c in enumerate(block.columns)}
-            offset = addresses[_FIRST_ROWS][block.source] - first if block.source else 0
+            offset = addresses[_FIRST_ROWS][block.source] - first + block.source_start if block.source else 0
             cells = []
             for row in range(first, first + block.rows):
                 template = column.first if row == first else column.step

@@ -41,6 +41,7 @@ __all__ = [
     "SUMMARY",
     "VERIFICATION",
     "VERIFY_TOLERANCE",
+    "VERIFY_WINDOW",
     "YIELDING_TITLE",
     "damping_label",
     "result_layout",
@@ -98,6 +99,11 @@ YIELDING_TITLE = "Yielding oscillators (bilinear hysteresis; strength fy = F_el 
 #: Relative tolerance of the Verification sheet: the same recurrence evaluated in another
 #: order of floating-point operations; 2000 steps of a damped oscillator lose far fewer digits.
 VERIFY_TOLERANCE = 1e-9
+#: Steps the Verification sheet replays: the whole record up to this length, beyond it a
+#: window of this many steps around the peaks, started from groundstep's state at its first
+#: step (stated on the sheet; ``verify`` recomputes it). 2,000 formula rows keep a long
+#: record's workbook small and quick to write, and a reviewer can still follow every row.
+VERIFY_WINDOW = 2000
 #: Relative difference of a spectrum's PSA from the exact piecewise-linear solution
 #: (Nigam & Jennings 1969) above which the Spectra sheet flags the ordinate: the 1 %
 #: the yielding results are held to (``core.defaults.DEFAULT_YIELDING_STEP_RATIO``).
@@ -126,6 +132,7 @@ def result_layout(
     n_rigid: int = 0,
     ductilities: tuple[float, ...] = (),
     n_ductility_periods: int = 0,
+    verification_window: tuple[int, int] | None = None,
     target_label: str = "",
     n_target_points: int = 0,
 ) -> WorkbookLayout:
@@ -168,6 +175,9 @@ def result_layout(
     n_findings : int, default 1
         Rows of the Summary's plausibility notes (``core.plausibility``; one
         row saying "none" when there is nothing to note).
+    verification_window : (int, int), optional
+        (first step, steps) the Verification sheet replays, steps counted
+        from 0 at the record's first sample; default the whole record.
     """
     velocity_unit = f"{length_unit}/s"
     return WorkbookLayout(
@@ -178,7 +188,7 @@ def result_layout(
             _peaks(n_oscillators, unit, length_unit, velocity_unit, n_yielding),
             *((_ductility(ductilities, n_ductility_periods),) if ductilities and n_ductility_periods else ()),
             _measures(n_samples, unit, length_unit, velocity_unit, n_raw > 0, n_frequencies, n_chart_frequencies),
-            _verification(n_samples),
+            _verification(n_samples, verification_window or (0, n_samples)),
             _audit(n_steps, target_label, n_target_points),
         )
     )
@@ -465,7 +475,7 @@ def _peaks(n_oscillators, unit, length_unit, velocity_unit, n_yielding) -> Sheet
     return Sheet(PEAKS, "Peak response of the oscillators", (table, yielding))
 
 
-def _verification(n_samples) -> Sheet:
+def _verification(n_samples: int, window: tuple[int, int]) -> Sheet:
     inputs = Fields(
         "verification_inputs", "Oscillator (input cells)", 3, 1,
         (
@@ -505,8 +515,9 @@ def _verification(n_samples) -> Sheet:
     peak = "=MAX(MAX({{verification_steps.{0}}}),-MIN({{verification_steps.{0}}}))"
     rel = "=ABS({{formula_{0}}}-{{python_{0}}})/MAX(ABS({{python_{0}}}),1E-300)"
     check_fields, check_formulas = [], []
-    quantities = (("u", "u", "Peak |u| (SD)", "m"), ("v", "v", "Peak |u̇| (SV)", "m/s"),
-                  ("t", "total", "Peak |ü + ü_g| (SA)", "m/s²"))  # fmt: skip
+    quantities = (("u", "u", "Peak |u| over the replayed steps", "m"),
+                  ("v", "v", "Peak |u̇| over the replayed steps", "m/s"),
+                  ("t", "total", "Peak |ü + ü_g| over the replayed steps", "m/s²"))  # fmt: skip
     for quantity, column, label, si_unit in quantities:
         check_fields += [
             Field(f"formula_{quantity}", f"{label} by formula", si_unit, SCIENTIFIC),
@@ -520,6 +531,20 @@ def _verification(n_samples) -> Sheet:
     check = Fields(
         "verification_check", "Check", 19, 1, tuple(check_fields), checked=True, formulas=tuple(check_formulas)
     )  # the python_* values are checked by verify; formula cells are not
+    start, rows = window
+    start_state = Fields(
+        "verification_start", "Starting state (by groundstep; verify recomputes it)", 31, 1,
+        (
+            Field("verification_first_step", "First step replayed (0: the record's first sample, at rest)", "",
+                  INTEGER),
+            Field("verification_steps_replayed", "Steps replayed", "", INTEGER),
+            Field("verification_record_steps", "Steps in the record", "", INTEGER),
+            Field("verification_start_u", "u at the first step replayed", "m", GENERAL),
+            Field("verification_start_v", "u̇ at the first step replayed", "m/s", GENERAL),
+            Field("verification_window", "Record peaks (by groundstep) inside the replayed steps", "", TEXT),
+        ),
+        checked=True,
+    )  # fmt: skip
     a_prev = "{a}{q}"
     predictor_u = "{u}{q}+{verification_dt}*{v}{q}+{verification_dt}^2*(0.5-{verification_beta})*" + a_prev
     predictor_v = "{v}{q}+{verification_dt}*(1-{verification_gamma})*" + a_prev
@@ -529,23 +554,29 @@ def _verification(n_samples) -> Sheet:
             FormulaColumn("time", "Time", f"={RECORD}!A{{rr}}", f"={RECORD}!A{{rr}}", "s", FIXED3, 9.0),
             FormulaColumn("ag", "ü_g", f"={RECORD}!B{{rr}}*{{verification_factor}}",
                           f"={RECORD}!B{{rr}}*{{verification_factor}}", "m/s²", SCIENTIFIC),
-            FormulaColumn("a", "ü (relative)", "=-{ag}{r}",
+            FormulaColumn("a", "ü (relative)", "=-{ag}{r}-{c}*{v}{r}-{k}*{u}{r}",
                           "=(-{ag}{r}-{k}*(" + predictor_u + ")-{c}*(" + predictor_v + "))/{denominator}",
                           "m/s²", SCIENTIFIC),
-            FormulaColumn("u", "u", "=0",
+            FormulaColumn("u", "u", "={verification_start_u}",
                           "={u}{q}+{verification_dt}*{v}{q}+{verification_dt}^2*((0.5-{verification_beta})*{a}{q}"
                           "+{verification_beta}*{a}{r})", "m", SCIENTIFIC),
-            FormulaColumn("v", "u̇", "=0",
+            FormulaColumn("v", "u̇", "={verification_start_v}",
                           "={v}{q}+{verification_dt}*((1-{verification_gamma})*{a}{q}+{verification_gamma}*{a}{r})",
                           "m/s", SCIENTIFIC),
             FormulaColumn("total", "ü + ü_g = -(c·u̇ + k·u)", "=-({c}*{v}{r}+{k}*{u}{r})",
                           "=-({c}*{v}{r}+{k}*{u}{r})", "m/s²", SCIENTIFIC),
         ),
-        n_samples,
+        rows,
         source_sheet=RECORD,
         source="record_table",
+        source_start=start,
     )  # fmt: skip
-    return Sheet(VERIFICATION, "Verification: one oscillator replayed by formulas", (inputs, constants, check, steps))
+    note = (f"Replays record steps {start}-{start + rows - 1} of 0-{n_samples - 1} (the whole record)"
+            if rows == n_samples else
+            f"Replays record steps {start}-{start + rows - 1} of 0-{n_samples - 1} (a window of {rows} "
+            f"around the peaks), from groundstep's state at step {start} (the Starting state block)")  # fmt: skip
+    return Sheet(VERIFICATION, "Verification: one oscillator replayed by formulas",
+                 (inputs, constants, check, start_state, steps), note=note)  # fmt: skip
 
 
 def _audit(n_steps: int, target_label: str = "", n_target_points: int = 0) -> Sheet:
