@@ -21,7 +21,7 @@ import openpyxl
 import pytest
 
 from groundstep.addin.cli import main
-from groundstep.addin.result import layout
+from groundstep.addin.result import layout, sheets
 from groundstep.addin.result.content import stored_record
 from groundstep.core import Record, linear_response
 from groundstep.core.synthetic import synthetic_record
@@ -207,7 +207,7 @@ def test_window_replay_matches_linear_response(workbooks):
     start = _name(book, "verification_first_step").value
     rows = _name(book, "verification_steps_replayed").value
     samples = [row[0].value for row in _name(book, "record_table_accel")]
-    assert start > 0 and rows == 2000 and len(samples) == 3001  # the window is used, not the whole record
+    assert start > 0 and rows == sheets.VERIFY_WINDOW and len(samples) == 3001  # the window is used, not the whole record
     record = stored_record(Record(samples, _name(book, "dt").value, _name(book, "record_unit").value))
     direct = linear_response(record, _name(book, "verification_period").value,
                              _name(book, "verification_damping").value, "average")  # fmt: skip

@@ -99,11 +99,12 @@ YIELDING_TITLE = "Yielding oscillators (bilinear hysteresis; strength fy = F_el 
 #: Relative tolerance of the Verification sheet: the same recurrence evaluated in another
 #: order of floating-point operations; 2000 steps of a damped oscillator lose far fewer digits.
 VERIFY_TOLERANCE = 1e-9
-#: Steps the Verification sheet replays: the whole record up to this length, beyond it a
-#: window of this many steps around the peaks, started from groundstep's state at its first
-#: step (stated on the sheet; ``verify`` recomputes it). 2,000 formula rows keep a long
-#: record's workbook small and quick to write, and a reviewer can still follow every row.
-VERIFY_WINDOW = 2000
+#: Samples the Verification sheet replays: the whole record up to this length (20 s at
+#: 0.01 s, the demo record, is replayed whole), beyond it a window of this many samples
+#: around the peaks, started from groundstep's state at its first sample (stated on the
+#: sheet; ``verify`` recomputes it). About 2,000 formula rows keep a long record's workbook
+#: small and quick to write, and a reviewer can still follow every row.
+VERIFY_WINDOW = 2001
 #: Relative difference of a spectrum's PSA from the exact piecewise-linear solution
 #: (Nigam & Jennings 1969) above which the Spectra sheet flags the ordinate: the 1 %
 #: the yielding results are held to (``core.defaults.DEFAULT_YIELDING_STEP_RATIO``).
