@@ -13,10 +13,10 @@ from __future__ import annotations
 import contextlib
 import io
 import tempfile
-import time
 from pathlib import Path
 
 import numpy as np
+from _timing import best_of
 from openpyxl import Workbook
 
 from groundstep.addin.cli import main
@@ -49,15 +49,6 @@ def input_workbook(path: Path) -> str:
     return f"'Ground motion'!B1:B{SAMPLES + 1}"
 
 
-def best(call, repeats: int = REPEATS) -> float:
-    times = []
-    for _ in range(repeats):
-        start = time.perf_counter()
-        call()
-        times.append(time.perf_counter() - start)
-    return min(times)
-
-
 def main_bench() -> None:
     folder = Path(tempfile.mkdtemp(prefix="gs-fill-"))
     source = folder / "input.xlsx"
@@ -72,7 +63,7 @@ def main_bench() -> None:
                 raise RuntimeError("fill failed")
 
     fill()  # load kernels
-    whole = best(fill)
+    whole = best_of(fill, REPEATS)
     size = out.stat().st_size
 
     from groundstep.addin.cli.main import _parser  # the same settings as the command line
@@ -80,10 +71,10 @@ def main_bench() -> None:
     args = _parser().parse_args(argv)
     record, settings, label = read_input_workbook(source, record=reference, dt=DT, unit="g")
     settings = settings_from_options(args, settings)
-    read = best(lambda: read_input_workbook(source, record=reference, dt=DT, unit="g"))
+    read = best_of(lambda: read_input_workbook(source, record=reference, dt=DT, unit="g"), REPEATS)
     report = build_report(record, settings, command="bench", source=label)
-    build = best(lambda: build_report(record, settings, command="bench", source=label))
-    write = best(lambda: write_report(report, folder / "w.xlsx", force=True))
+    build = best_of(lambda: build_report(record, settings, command="bench", source=label), REPEATS)
+    write = best_of(lambda: write_report(report, folder / "w.xlsx", force=True), REPEATS)
     print(f"groundstep fill: {SAMPLES} samples, 200 periods x 3 dampings (best of {REPEATS})")
     print(f"  whole command    {whole:7.3f} s   (target {TARGET_SECONDS} s: ratio {whole / TARGET_SECONDS:4.2f})")
     print(f"    read input     {read:7.3f} s   share {read / whole:5.1%}")

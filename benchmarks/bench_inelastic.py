@@ -22,6 +22,7 @@ import warnings
 
 import numba
 import numpy as np
+from _timing import best_of
 
 from groundstep.core import Record, elastic_spectrum, inelastic_response, period_grid
 from groundstep.core import _kernels_inelastic as _kernels
@@ -46,15 +47,6 @@ def _record() -> Record:
     return Record(0.4 * a / np.abs(a).max(), DT, unit="g")
 
 
-def _best(call) -> float:
-    times = []
-    for _ in range(REPEATS):
-        began = time.perf_counter()
-        call()
-        times.append(time.perf_counter() - began)
-    return min(times)
-
-
 def main() -> None:
     record = _record()
     print(f"machine: {os.cpu_count()} cores, numba {numba.__version__} with {numba.get_num_threads()} threads")
@@ -65,7 +57,7 @@ def main() -> None:
     # --- one oscillator ----------------------------------------------------
     for label, reduction in (("yielding, R = 4", 4.0), ("elastic, R = 0.5", 0.5)):
         inelastic_response(record, 1.0, reduction_factor=reduction)  # compile / load cache
-        seconds = _best(lambda r=reduction: inelastic_response(record, 1.0, reduction_factor=r))
+        seconds = best_of(lambda r=reduction: inelastic_response(record, 1.0, reduction_factor=r), REPEATS)
         result = inelastic_response(record, 1.0, reduction_factor=reduction)
         print(
             f"inelastic_response T = 1 s, {label}: {seconds * 1e3:.2f} ms, "
@@ -84,7 +76,7 @@ def main() -> None:
         _kernels.history(-record.accel, DT, 1, omega**2, 0.1 * omega, fy, 0.0, 0.25, 0.5, 1e-9, 20, 256, *out, info)
 
     kernel()
-    print(f"  history kernel alone, R = 4: {_best(kernel) / steps * 1e9:.1f} ns per oscillator-step")
+    print(f"  history kernel alone, R = 4: {best_of(kernel, REPEATS) / steps * 1e9:.1f} ns per oscillator-step")
 
     # --- constant-ductility spectra ----------------------------------------
     ductilities = [1.0, 2.0, 4.0, 6.0]
@@ -106,7 +98,7 @@ def main() -> None:
             walls.append(time.perf_counter() - began)
             kernel_ns.append(stats["kernel_seconds"] / stats["oscillator_steps"] * 1e9)
         wall = min(walls)
-        elastic = _best(lambda p=periods: elastic_spectrum(record, p, [0.05]))
+        elastic = best_of(lambda p=periods: elastic_spectrum(record, p, [0.05]), REPEATS)
         substeps = substep_counts(record.dt, periods, resolve_method("average"), 0.1)
         print(
             f"\nductility_spectrum, 100 periods {shortest:g}-{longest:g} s (sub-steps up to {substeps.max()}), "

@@ -20,10 +20,10 @@ import os
 import subprocess
 import sys
 import tempfile
-import time
 import warnings
 
 import numpy as np
+from _timing import best_of
 
 from groundstep.core import Record, SubstepWarning, _kernels, elastic_spectrum, linear_response, period_grid
 from groundstep.core.linear import _step_coefficients
@@ -38,15 +38,6 @@ def invented_record() -> Record:
     rng = np.random.default_rng(2026)
     noise = np.convolve(rng.normal(size=N_STEPS + 4), np.ones(5) / 5, mode="valid")
     return Record(0.1 * noise, dt=0.01, unit="g")
-
-
-def best_of(call, repeats: int = REPEATS) -> float:
-    best = float("inf")
-    for _ in range(repeats):
-        start = time.perf_counter()
-        call()
-        best = min(best, time.perf_counter() - start)
-    return best
 
 
 def numpy_loop(load, coef):
@@ -89,7 +80,7 @@ def small_calls(record: Record) -> None:
     short = Record(record.accel[:2000], dt=record.dt, unit="m/s2")
     linear_response(short, 1.0)
     repeat = 2000
-    seconds = best_of(lambda: [linear_response(short, 1.0) for _ in range(repeat)]) / repeat
+    seconds = best_of(lambda: [linear_response(short, 1.0) for _ in range(repeat)], REPEATS) / repeat
     print(f"3. linear_response, one oscillator, 2,000 samples, end to end: {seconds * 1e6:6.1f} us "
           f"(target 30 us: ratio {seconds / 30e-6:4.2f})")
     periods = period_grid(0.1, 10.0, 20)
@@ -99,7 +90,7 @@ def small_calls(record: Record) -> None:
     timings = {}
     for label, kernel in (("one thread", _kernels.peaks_serial), ("parallel", _kernels.peaks)):
         kernel(load, coef, used, starts, zeros, zeros, out)
-        timings[label] = best_of(lambda k=kernel: [k(load, coef, used, starts, zeros, zeros, out) for _ in range(50)]) / 50
+        timings[label] = best_of(lambda k=kernel: [k(load, coef, used, starts, zeros, zeros, out) for _ in range(50)], REPEATS) / 50
     print(f"   20 periods x 2,000 steps (below the serial threshold of {_kernels.SERIAL_WORK:,} oscillator-steps): "
           f"one thread {timings['one thread'] * 1e6:.0f} us, parallel {timings['parallel'] * 1e6:.0f} us "
           f"(parallel / one thread {timings['parallel'] / timings['one thread']:.1f}x)")
@@ -118,7 +109,7 @@ def main() -> None:
     timings = {}
     for method in ("average", "linear", "exact"):
         elastic_spectrum(record, periods, 0.05, method)  # compile or load from cache
-        seconds = best_of(lambda m=method: elastic_spectrum(record, periods, 0.05, m))
+        seconds = best_of(lambda m=method: elastic_spectrum(record, periods, 0.05, m), REPEATS)
         timings[method] = seconds
         print(f"  {method:8s} {seconds * 1e3:8.2f} ms   {seconds / steps * 1e9:6.3f} ns per oscillator-step")
 
@@ -127,7 +118,7 @@ def main() -> None:
     reference = numpy_loop(load, coef)
     spectrum = elastic_spectrum(record, periods, 0.05, "average")
     agreement = np.max(np.abs(reference[0] - spectrum.sd[0]) / spectrum.sd[0])
-    numpy_seconds = best_of(lambda: numpy_loop(load, coef), repeats=2)
+    numpy_seconds = best_of(lambda: numpy_loop(load, coef), 2)
     print(f"  numpy loop over time, vectorised across oscillators: {numpy_seconds * 1e3:.0f} ms   "
           f"{numpy_seconds / steps * 1e9:.2f} ns per oscillator-step (SD agrees to {agreement:.1e})")
     for method, seconds in timings.items():
@@ -138,7 +129,7 @@ def main() -> None:
     for method in ("average", "exact"):
         spectrum = elastic_spectrum(record, periods, 0.05, method)
         sub_steps = int(spectrum.substeps.sum()) * steps_per_oscillator
-        seconds = best_of(lambda m=method: elastic_spectrum(record, periods, 0.05, m))
+        seconds = best_of(lambda m=method: elastic_spectrum(record, periods, 0.05, m), REPEATS)
         print(f"  {method:8s} {seconds * 1e3:8.2f} ms   {seconds / steps * 1e9:6.3f} ns per record oscillator-step, "
               f"{seconds / sub_steps * 1e9:6.3f} ns per oscillator-sub-step "
               f"({sub_steps / steps:.2f} sub-steps per record step on average)")

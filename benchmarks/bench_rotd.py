@@ -20,10 +20,10 @@ arithmetic without the linearity shortcut.
 
 from __future__ import annotations
 
-import time
 import warnings
 
 import numpy as np
+from _timing import best_of
 
 from groundstep.core import Record, SubstepWarning, elastic_spectrum, period_grid
 from groundstep.core.rotd import rotd_spectrum
@@ -43,15 +43,6 @@ def invented_pair() -> tuple[Record, Record]:
     x = np.convolve(rng.normal(size=N_STEPS + 4), smooth, mode="valid") * envelope
     y = np.convolve(rng.normal(size=N_STEPS + 4), smooth, mode="valid") * envelope * 0.8
     return Record(0.1 * x, dt=0.01, unit="g"), Record(0.1 * y, dt=0.01, unit="g")
-
-
-def best_of(call, repeats: int) -> float:
-    best = float("inf")
-    for _ in range(repeats):
-        start = time.perf_counter()
-        call()
-        best = min(best, time.perf_counter() - start)
-    return best
 
 
 def naive(record_x: Record, record_y: Record, periods) -> np.ndarray:

@@ -14,10 +14,10 @@ from __future__ import annotations
 import contextlib
 import io
 import tempfile
-import time
 from pathlib import Path
 
 import numpy as np
+from _timing import best_of
 
 from groundstep.addin.cli import main
 from groundstep.addin.result.offline import write_report
@@ -28,15 +28,6 @@ from groundstep.core import Record, period_grid, synthetic_record
 RUNS = 3
 RECORDS, STEPS, DT, PERIODS = 11, 8000, 0.01, 100
 TARGET_SECONDS = 2.0
-
-
-def best(call, runs: int = RUNS) -> float:
-    times = []
-    for _ in range(runs):
-        start = time.perf_counter()
-        call()
-        times.append(time.perf_counter() - start)
-    return min(times)
 
 
 def main_bench() -> None:
@@ -59,7 +50,7 @@ def main_bench() -> None:
             assert main(args) == 0
 
     command()  # warm-up: numba kernels load from the cache, imports done
-    whole = best(command)
+    whole = best_of(command, RUNS)
     records = []
 
     def read() -> None:
@@ -67,13 +58,13 @@ def main_bench() -> None:
         for i, (x, y) in enumerate(pairs):
             records.append(SuiteRecord(f"r{i}", x, Record.from_text(x, DT, "g"), y, Record.from_text(y, DT, "g")))
 
-    reading = best(read)
+    reading = best_of(read, RUNS)
     settings = SuiteSettings("ASCE7", (("sds", 1.0), ("sd1", 0.6), ("tl", 8.0)),
                              tuple(float(p) for p in period_grid(0.02, 10.0, PERIODS)), preset="ASCE7", structure_period=1.0)
     reports = []
-    spectra = best(lambda: reports.append(build_suite(records, settings)))
-    writing = best(lambda: write_report(reports[-1], folder / "split.xlsx", force=True))
-    check = best(lambda: verify_workbook(out))
+    spectra = best_of(lambda: reports.append(build_suite(records, settings)), RUNS)
+    writing = best_of(lambda: write_report(reports[-1], folder / "split.xlsx", force=True), RUNS)
+    check = best_of(lambda: verify_workbook(out), RUNS)
     print(f"groundstep suite: {RECORDS} two-component records x {STEPS} steps, {PERIODS} periods (best of {RUNS})")
     print(f"  whole command      {whole:6.3f} s   (target < {TARGET_SECONDS:g} s: {whole / TARGET_SECONDS:.2f} of it)")
     print(f"  reading 22 files   {reading:6.3f} s   ({reading / whole:.0%})")

@@ -14,26 +14,19 @@ import tempfile
 import time
 from pathlib import Path
 
+from _timing import best_of
+
 from groundstep.addin.cli import main
 from groundstep.addin.result.verify import verify_workbook
 
 RUNS = 3
 
 
-def best(call, runs: int = RUNS) -> float:
-    times = []
-    for _ in range(runs):
-        start = time.perf_counter()
-        call()
-        times.append(time.perf_counter() - start)
-    return min(times)
-
-
 def main_bench() -> None:
     folder = Path(tempfile.mkdtemp(prefix="gs-bench-"))
     out = folder / "demo.xlsx"
-    demo = best(lambda: main(["demo", str(out), "--force"]))
-    check = best(lambda: verify_workbook(out))
+    demo = best_of(lambda: main(["demo", str(out), "--force"]), RUNS)
+    check = best_of(lambda: verify_workbook(out), RUNS)
     cold = time.perf_counter()
     subprocess.run([sys.executable, "-m", "groundstep.addin", "demo", str(folder / "cli.xlsx")], check=True,
                    capture_output=True)  # fmt: skip
@@ -48,7 +41,7 @@ def main_bench() -> None:
                 subprocess.run([soffice, f"-env:UserInstallation={Path(profile).as_uri()}", "--headless",
                                 "--convert-to", "xlsx", "--outdir", str(folder / "calc"), str(out)],
                                check=True, capture_output=True)  # fmt: skip
-        trip = best(round_trip)
+        trip = best_of(round_trip, RUNS)
         print(f"LibreOffice recalculation round trip:  {trip:7.3f} s   ratio to demo {trip / demo:5.2f}")
     else:
         print("LibreOffice not installed: round trip not measured")
