@@ -189,6 +189,35 @@ class OutputUnits:
         factor = LENGTH_UNITS[self.length]
         return _in_unit(value, factor * factor)
 
+    def unit_of(self, kind: str) -> str | None:
+        """The unit of a quantity of `kind` (``"acceleration"``, ``"length"``, ``"velocity"``, ``"energy"``).
+
+        None for any other kind (times, ratios, counts): those are not converted.
+        """
+        return {
+            "acceleration": self.acceleration,
+            "length": self.length,
+            "velocity": self.velocity,
+            "energy": self.energy,
+        }.get(kind)
+
+    def from_si(self, kind: str, value: ArrayLike) -> float | NDArray[np.float64]:
+        """SI value(s) of a quantity of `kind` in this set's unit of that kind; other kinds as floats, unchanged.
+
+        Examples
+        --------
+        >>> units = output_units("cm/s2")
+        >>> units.from_si("length", 0.5), units.from_si("time", 2.5)
+        (50.0, 2.5)
+        """
+        convert = {
+            "acceleration": self.acceleration_from_si,
+            "length": self.length_from_si,
+            "velocity": self.velocity_from_si,
+            "energy": self.energy_from_si,
+        }.get(kind)
+        return _in_unit(value, 1.0) if convert is None else convert(value)
+
 
 def output_units(record_unit: str, acceleration: str | None = None, length: str | None = None) -> OutputUnits:
     """The units to report results in for a record given in `record_unit`.

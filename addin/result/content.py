@@ -363,11 +363,9 @@ def _record_columns(record: Record, out: OutputUnits, shift: float) -> dict[str,
 def _measures_block(measures: GroundMotionMeasures, prefix: str, out: OutputUnits, shift: float) -> dict[str, Any]:
     """The Measures sheet's fields in the report units, times of occurrence moved by `shift` [s]
     (NaN, e.g. the times of an all-zero record, left blank)."""
-    convert = {"acceleration": out.acceleration_from_si, "velocity": out.velocity_from_si, "length": out.length_from_si,
-               "instant": lambda t: t + shift}  # fmt: skip
     values: dict[str, Any] = {}
     for key, _, kind, _, _ in sheets.MEASURE_FIELDS:
-        value = float(convert[kind](measures[key]) if kind in convert else measures[key])
+        value = float(measures[key] + shift if kind == "instant" else out.from_si(kind, measures[key]))
         values[prefix + key] = None if math.isnan(value) else value
     return values
 

@@ -157,13 +157,7 @@ def units(record_unit: str, accel_unit_out: Cell, length_unit_out: Cell) -> Outp
 
 def to_unit(value_si: Any, kind: str, out: OutputUnits) -> Any:
     """SI value(s) in the output unit of their kind; scalars come back as Python numbers."""
-    convert = {
-        "length": out.length_from_si,
-        "velocity": out.velocity_from_si,
-        "acceleration": out.acceleration_from_si,
-        "energy": out.energy_from_si,
-    }.get(kind)
-    converted = np.asarray(value_si if convert is None else convert(value_si), dtype=np.float64)
+    converted = np.asarray(out.from_si(kind, value_si), dtype=np.float64)
     if converted.ndim == 0:
         return int(value_si) if kind == "count" else float(converted)
     return converted
@@ -171,14 +165,8 @@ def to_unit(value_si: Any, kind: str, out: OutputUnits) -> Any:
 
 def label(name: str, kind: str, out: OutputUnits) -> str:
     """``name [unit]`` for a header cell."""
-    unit = {
-        "length": out.length,
-        "velocity": out.velocity,
-        "acceleration": out.acceleration,
-        "energy": out.energy,
-        "time": "s",
-        "arias": "m/s",  # Arias intensity keeps its SI unit
-    }.get(kind, "-")
+    # times are in s and Arias intensity keeps its SI unit; ratios and counts have none
+    unit = out.unit_of(kind) or {"time": "s", "arias": "m/s"}.get(kind, "-")
     return f"{name} [{unit}]"
 
 
