@@ -231,7 +231,7 @@ def test_spectrum_many_files_in_parallel(tmp_path):
                   "--workers", "2", "--dampings", "0.02,0.05", "--periods", "0.05,5,20")  # fmt: skip
     assert result.returncode == 2  # one bad file
     assert "bad.txt: line 3 is not numeric" in result.stderr
-    assert "[4/4]" in result.stderr  # progress, one line per file when stderr is not a terminal
+    assert "[4/4: 3 done, 1 failed; " in result.stderr  # progress, one line per file when stderr is not a terminal
     assert "3 of 4 records written" in result.stdout
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")

@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import argparse
 import sys
-import time
 from pathlib import Path
 
 from groundstep.addin.common import CAUTION
@@ -12,8 +11,6 @@ from groundstep.addin.result.content import ReportSettings
 from groundstep.addin.survey import (
     RESULTS_FILE,
     TABLE_FILE,
-    RecordOutcome,
-    ResultsManifest,
     SurveySettings,
     default_workers,
     read_manifest,
@@ -31,6 +28,7 @@ from .common import (
     floats,
     settings_from_options,
 )
+from .progress import Progress
 
 __all__ = ["add", "run"]
 
@@ -88,9 +86,9 @@ def run(args: argparse.Namespace, command_line: str) -> int:
         entries = read_manifest(source, unit=args.unit, dt=args.dt)
     else:
         raise FileNotFoundError(f"manifest or folder {args.source!r} does not exist")
-    progress = _Progress(len(entries), enabled=not args.quiet)
+    progress = Progress(len(entries), not args.quiet, "records", ("done", "skipped", "failed"))
     summary = run_survey(
-        entries, settings, out, workers=args.workers, scheduler=args.scheduler, on_outcome=progress.step
+        entries, settings, out, workers=args.workers, scheduler=args.scheduler, on_outcome=lambda outcome, manifest: progress.step(outcome.file, outcome.status, outcome.message)
     )
     progress.close()
     for file, message in summary.failures[:_LISTED_FAILURES]:
@@ -135,43 +133,3 @@ def _settings(args: argparse.Namespace) -> SurveySettings:
         changes["measures"] = False
     fields = {name: getattr(base, name) for name in SurveySettings.__dataclass_fields__}
     return SurveySettings(**{**fields, **changes})
-
-
-class _Progress:
-    """Records done, skipped and failed, rate and time left, on stderr: one updating line on a terminal."""
-
-    def __init__(self, total: int, enabled: bool) -> None:
-        self.total, self.enabled = total, enabled
-        self.tty = enabled and sys.stderr.isatty()
-        self.counts = {"done": 0, "skipped": 0, "failed": 0}
-        self.start = time.perf_counter()
-
-    def step(self, outcome: RecordOutcome, manifest: ResultsManifest) -> None:
-        self.counts[outcome.status] += 1
-        if not self.enabled:
-            return
-        finished = sum(self.counts.values())
-        elapsed = time.perf_counter() - self.start
-        rate = finished / elapsed if elapsed > 0 else 0.0
-        left = (self.total - finished) / rate if rate > 0 else float("nan")
-        c = self.counts
-        line = (f"{finished}/{self.total}: {c['done']} done, {c['skipped']} skipped, {c['failed']} failed; "
-                f"{rate:.3g} records/s, {_clock(left)} left")  # fmt: skip
-        if self.tty:
-            sys.stderr.write(f"\r{line:<100}")
-        else:
-            sys.stderr.write(f"[{line}] {outcome.file}: {outcome.status}: {outcome.message}\n")
-        sys.stderr.flush()
-
-    def close(self) -> None:
-        if self.tty:
-            sys.stderr.write("\n")
-            sys.stderr.flush()
-
-
-def _clock(seconds: float) -> str:
-    if seconds != seconds:  # NaN: no rate yet
-        return "?"
-    minutes, secs = divmod(int(round(seconds)), 60)
-    hours, minutes = divmod(minutes, 60)
-    return f"{hours}:{minutes:02d}:{secs:02d}" if hours else f"{minutes}:{secs:02d}"

@@ -20,6 +20,8 @@ from groundstep.addin.common import CAUTION, as_text, write_atomically
 from groundstep.addin.result.content import ReportSettings
 from groundstep.addin.survey.task import one_numba_thread
 
+from .progress import Progress
+
 __all__ = ["OPTION_NAMES", "plan_outputs", "run_batch", "spectrum_job"]
 
 #: How record-reading messages name the arguments on this command line.
@@ -133,16 +135,16 @@ def run_batch(
     progress: bool = True,
 ) -> list[tuple[str, str]]:
     """Run every job; return (input, error message) of the failures."""
-    bar = _Progress(len(jobs), progress)
+    bar = Progress(len(jobs), progress, "files")
     failures: list[tuple[str, str]] = []
     if workers == 1 or len(jobs) == 1:
         for source, target in jobs:
             try:
                 summary = spectrum_job(source, target, settings, dt, unit, time_column, command)
-                bar.step(source.name, summary)
+                bar.step(source.name, "done", summary)
             except (ValueError, TypeError, OSError) as exc:
                 failures.append((str(source), str(exc)))
-                bar.step(source.name, "failed")
+                bar.step(source.name, "failed", str(exc))
         bar.close()
         return failures
     with ProcessPoolExecutor(max_workers=min(workers, len(jobs)), initializer=one_numba_thread) as pool:
@@ -153,10 +155,10 @@ def run_batch(
         for future in as_completed(futures):
             source = futures[future]
             try:
-                bar.step(source.name, future.result())
+                bar.step(source.name, "done", future.result())
             except (ValueError, TypeError, OSError) as exc:
                 failures.append((str(source), str(exc)))
-                bar.step(source.name, "failed")
+                bar.step(source.name, "failed", str(exc))
     bar.close()
     return failures
 
@@ -166,27 +168,3 @@ def _write_text_atomically(target: Path, text: str) -> None:
         path.write_text(text, encoding="utf-8", newline="")
 
     write_atomically(target, write, force=True)
-
-
-class _Progress:
-    """A progress bar on stderr when it is a terminal; one line per file otherwise."""
-
-    def __init__(self, total: int, enabled: bool) -> None:
-        self.total, self.done, self.enabled = total, 0, enabled
-        self.tty = enabled and sys.stderr.isatty()
-
-    def step(self, name: str, summary: str) -> None:
-        self.done += 1
-        if not self.enabled:
-            return
-        if self.tty:
-            filled = int(30 * self.done / self.total)
-            sys.stderr.write(f"\r[{'#' * filled}{'.' * (30 - filled)}] {self.done}/{self.total} {name[:40]:<40}")
-        else:
-            sys.stderr.write(f"[{self.done}/{self.total}] {name}: {summary}\n")
-        sys.stderr.flush()
-
-    def close(self) -> None:
-        if self.tty:
-            sys.stderr.write("\n")
-            sys.stderr.flush()
