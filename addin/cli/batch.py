@@ -11,6 +11,8 @@ from groundstep.addin.result.content import ReportSettings
 from groundstep.addin.survey import (
     RESULTS_FILE,
     TABLE_FILE,
+    RecordOutcome,
+    ResultsManifest,
     SurveySettings,
     default_workers,
     read_manifest,
@@ -87,12 +89,14 @@ def run(args: argparse.Namespace, command_line: str) -> int:
     else:
         raise FileNotFoundError(f"manifest or folder {args.source!r} does not exist")
     progress = Progress(len(entries), not args.quiet, "records", ("done", "skipped", "failed"))
-    summary = run_survey(
-        entries, settings, out, workers=args.workers, scheduler=args.scheduler, on_outcome=lambda outcome, manifest: progress.step(outcome.file, outcome.status, outcome.message)
-    )
+
+    def show(outcome: RecordOutcome, manifest: ResultsManifest) -> None:
+        progress.step(outcome.file, outcome.status, _without_name(outcome.file, outcome.message))
+
+    summary = run_survey(entries, settings, out, workers=args.workers, scheduler=args.scheduler, on_outcome=show)
     progress.close()
     for file, message in summary.failures[:_LISTED_FAILURES]:
-        print(f"groundstep batch: failed: {file}: {message}", file=sys.stderr)
+        print(f"groundstep batch: failed: {file}: {_without_name(file, message)}", file=sys.stderr)
     if len(summary.failures) > _LISTED_FAILURES:
         print(f"groundstep batch: ... {len(summary.failures) - _LISTED_FAILURES} more failures in {out / RESULTS_FILE}",
               file=sys.stderr)  # fmt: skip
@@ -104,6 +108,12 @@ def run(args: argparse.Namespace, command_line: str) -> int:
         print("groundstep batch: interrupted; run the same command again to resume", file=sys.stderr)
     print(CAUTION)
     return EXIT_INPUT if summary.failures or summary.interrupted else EXIT_OK
+
+
+def _without_name(file: str, message: str) -> str:
+    """The message without the record's own name in front (record readers start with it; the line names it already)."""
+    prefix = f"{Path(file).name}: "
+    return message[len(prefix) :] if message.startswith(prefix) else message
 
 
 def _settings(args: argparse.Namespace) -> SurveySettings:
