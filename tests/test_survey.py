@@ -186,6 +186,7 @@ def test_bad_records_are_isolated(tmp_path, capsys):
         assert "\n" not in rows[file]["message"]
     err = capsys.readouterr().err
     assert "failed: nan.txt" in err and "failed: huge.txt" in err
+    assert "nan.txt: nan.txt" not in err  # the failure line names the record once
 
 
 def test_combined_table_matches_the_record_files(tmp_path):
