@@ -28,6 +28,6 @@ def _import_array_math_without_blas_probe() -> None:
 
 _import_array_math_without_blas_probe()
 
-from numba import njit, prange  # noqa: E402
+from numba import get_num_threads, njit, prange  # noqa: E402
 
-__all__ = ["njit", "prange"]
+__all__ = ["get_num_threads", "njit", "prange"]

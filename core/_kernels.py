@@ -26,7 +26,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ._jit import njit, prange
+from ._jit import get_num_threads, njit, prange
 
 #: Rows of a coefficient array (10, n_oscillators).
 N_COEFFICIENTS = 10
@@ -70,6 +70,12 @@ def chunk_starts(substeps, size=CHUNK):
 #: the state and coefficients stay in registers over these steps and the loop
 #: over the chunk's oscillators is still the innermost one, so it vectorises.
 VISIT = 4
+#: A chunk's oscillator loop runs over a multiple of this many lanes (one
+#: AVX-512 register of float64, two AVX2 ones): the lanes past the chunk's
+#: last oscillator hold a zero map, stay at rest and are never read, so no
+#: oscillator falls into the loop's scalar remainder (8x slower per
+#: oscillator); chunks of sub-stepped periods are often short and odd-sized.
+LANES = 8
 #: Oscillator-steps below which `spectrum_peaks` runs on the calling thread:
 #: waking a second thread on a busy machine costs milliseconds, more than a
 #: small spectrum takes (measured by benchmarks/bench_linear.py).
@@ -77,10 +83,10 @@ SERIAL_WORK = 2_000_000
 
 
 @njit(cache=True, inline="always")
-def _visit(w, m, pa0, pb0, pa1, pb1, pa2, pb2, pa3, pb3):
-    """Four sub-steps of every oscillator of a chunk (loads (pa, pb) of each sub-step)."""
+def _visit(w, lanes, pa0, pb0, pa1, pb1, pa2, pb2, pa3, pb3):
+    """Four sub-steps of every lane of a chunk (loads (pa, pb) of each sub-step)."""
     a = w[_A0:, :]
-    for j in range(m):
+    for j in range(lanes):
         u, v = w[_U, j], w[_V, j]
         c, k = a[8, j], a[9, j]
         pu, pv, pt = w[_PU, j], w[_PV, j], w[_PA, j]
@@ -97,15 +103,21 @@ def _visit(w, m, pa0, pb0, pa1, pb1, pa2, pb2, pa3, pb3):
 
 
 @njit(cache=True, inline="always")
-def _single(w, m, pa, pb):
-    """One sub-step of every oscillator of a chunk."""
+def _single(w, lanes, pa, pb):
+    """One sub-step of every lane of a chunk."""
     a = w[_A0:, :]
-    for j in range(m):
+    for j in range(lanes):
         u, v = _advance(a, j, w[_U, j], w[_V, j], pa, pb)
         w[_U, j], w[_V, j] = u, v
         w[_PU, j] = max(w[_PU, j], abs(u))
         w[_PV, j] = max(w[_PV, j], abs(v))
         w[_PA, j] = max(w[_PA, j], abs(a[8, j] * v + a[9, j] * u))
+
+
+@njit(cache=True, inline="always")
+def _lanes(m):
+    """Lanes a chunk of `m` oscillators runs: `m` rounded up to a multiple of `LANES`."""
+    return min(CHUNK, (m + LANES - 1) // LANES * LANES)
 
 
 @njit(cache=True, inline="always", fastmath=True)
@@ -114,8 +126,9 @@ def _chunk(load, coef, substeps, starts, u0, v0, out, chunk):
     n_steps = load.shape[0] - 1
     lo = starts[chunk]
     m = starts[chunk + 1] - lo
+    lanes = _lanes(m)
     s = substeps[lo]
-    w = np.zeros((_ROWS, CHUNK))
+    w = np.zeros((_ROWS, CHUNK))  # lanes m .. lanes - 1 keep a zero map: at rest, never read
     for j in range(m):
         for r in range(N_COEFFICIENTS):
             w[_A0 + r, j] = coef[r, lo + j]
@@ -135,15 +148,41 @@ def _chunk(load, coef, substeps, starts, u0, v0, out, chunk):
             queue[1, queued] = p0 + dp * (sub + 1)
             queued += 1
             if queued == VISIT:
-                _visit(w, m, queue[0, 0], queue[1, 0], queue[0, 1], queue[1, 1],
+                _visit(w, lanes, queue[0, 0], queue[1, 0], queue[0, 1], queue[1, 1],
                        queue[0, 2], queue[1, 2], queue[0, 3], queue[1, 3])  # fmt: skip
                 queued = 0
     for q in range(queued):
-        _single(w, m, queue[0, q], queue[1, q])
+        _single(w, lanes, queue[0, q], queue[1, q])
     for j in range(m):
         out[0, lo + j] = w[_PU, j]
         out[1, lo + j] = w[_PV, j]
         out[2, lo + j] = w[_PA, j]
+
+
+@njit(cache=True)
+def balance(substeps, starts, parts):
+    """Share chunks among `parts` threads by work (lanes x sub-steps): the owner of each chunk.
+
+    Longest first, each to the least loaded thread (Graham 1969), so the few
+    heavy chunks of sub-stepped short periods, which sort last, do not all
+    land on one thread as an even split of the chunk range would put them.
+
+    References
+    ----------
+    Graham, R. L. (1969). Bounds on multiprocessing timing anomalies. SIAM
+    Journal on Applied Mathematics, 17(2), 416-429.
+    """
+    n_chunks = starts.shape[0] - 1
+    work = np.empty(n_chunks)
+    for chunk in range(n_chunks):
+        work[chunk] = _lanes(starts[chunk + 1] - starts[chunk]) * substeps[starts[chunk]]
+    owner = np.empty(n_chunks, dtype=np.int64)
+    load = np.zeros(parts)
+    for chunk in np.argsort(-work, kind="mergesort"):
+        part = np.argmin(load)
+        owner[chunk] = part
+        load[part] += work[chunk]
+    return owner
 
 
 @njit(cache=True, parallel=True, fastmath=True)
@@ -166,10 +205,16 @@ def peaks(load, coef, substeps, starts, u0, v0, out):
     it can prove the rows do not overlap. Each visit of that loop takes
     `VISIT` sub-steps with the state held in registers (the loads of those
     sub-steps queued first, whatever the sub-step count), so sub-stepped and
-    plain chunks run the same loop. Chunks run in parallel threads.
+    plain chunks run the same loop, over a multiple of `LANES` lanes. Each
+    thread runs the chunks `balance` gives it.
     """
-    for chunk in prange(starts.shape[0] - 1):
-        _chunk(load, coef, substeps, starts, u0, v0, out, chunk)
+    n_chunks = starts.shape[0] - 1
+    parts = max(1, min(get_num_threads(), n_chunks))
+    owner = balance(substeps, starts, parts)
+    for part in prange(parts):
+        for chunk in range(n_chunks):
+            if owner[chunk] == part:
+                _chunk(load, coef, substeps, starts, u0, v0, out, chunk)
 
 
 @njit(cache=True, fastmath=True)
@@ -187,7 +232,7 @@ def spectrum_peaks(load, coef, substeps, starts, u0, v0, out):
 
 
 @njit(cache=True)
-def history(load, coef, substeps, u0, v0, u, v, out):
+def history(load, coef, substeps, u0, v0, u, v, total, out):
     """Histories of one oscillator at the samples, and its peaks read at every sub-step.
 
     Parameters
@@ -196,30 +241,41 @@ def history(load, coef, substeps, u0, v0, u, v, out):
     coef : (10, 1) float64, the map of ONE sub-step (h = dt / substeps)
     substeps : int, sub-steps per record step (load linear in between)
     u0, v0 : float, initial state
-    u, v : (n_samples,) float64, filled with the state at each sample
+    u, v, total : (n_samples,) float64, filled with the state and the total
+        acceleration ü + ü_g = -(c·v + k·u) at each sample
     out : (6,) float64, filled with max |u|, max |v|, max |ü + ü_g| over
         every sub-step, then the time of the first occurrence of each, in
         record steps (multiply by dt for seconds)
+
+    The peaks are kept with branch-free selects and their times as sub-step
+    counts, divided by `substeps` once at the end (same values as dividing
+    at every sub-step, without a division on the loop's path).
     """
     s = substeps
     c, k = coef[8, 0], coef[9, 0]
     ui, vi = u0, v0
     u[0], v[0] = ui, vi
+    total[0] = -(c * vi + k * ui)
     pu, pv, pa = abs(ui), abs(vi), abs(c * vi + k * ui)
-    tu, tv, ta = 0.0, 0.0, 0.0
+    ku, kv, ka = 0, 0, 0  # sub-steps from the start to each peak
+    step = 0
     for i in range(load.shape[0] - 1):
         p0 = load[i]
         dp = (load[i + 1] - p0) / s
+        at = 0.0
         for sub in range(s):
             ui, vi = _advance(coef, 0, ui, vi, p0 + dp * sub, p0 + dp * (sub + 1))
-            when = i + (sub + 1) / s
-            if abs(ui) > pu:
-                pu, tu = abs(ui), when
-            if abs(vi) > pv:
-                pv, tv = abs(vi), when
-            at = abs(c * vi + k * ui)
-            if at > pa:
-                pa, ta = at, when
+            step += 1
+            au, av = abs(ui), abs(vi)
+            at = c * vi + k * ui
+            aa = abs(at)
+            ku = step if au > pu else ku
+            pu = au if au > pu else pu
+            kv = step if av > pv else kv
+            pv = av if av > pv else pv
+            ka = step if aa > pa else ka
+            pa = aa if aa > pa else pa
         u[i + 1], v[i + 1] = ui, vi
+        total[i + 1] = -at
     out[0], out[1], out[2] = pu, pv, pa
-    out[3], out[4], out[5] = tu, tv, ta
+    out[3], out[4], out[5] = ku / s, kv / s, ka / s

@@ -146,9 +146,9 @@ def linear_response(
     _warn_substeps(period, record.dt, int(substeps[0]), resolved, ratio)
     displacement = np.empty(record.n)
     velocity = np.empty(record.n)
+    total = np.empty(record.n)
     found = np.empty(6)
-    _kernels.history(load, coef, int(substeps[0]), u0, v0, displacement, velocity, found)
-    total = -(coef[8, 0] * velocity + coef[9, 0] * displacement)
+    _kernels.history(load, coef, int(substeps[0]), u0, v0, displacement, velocity, total, found)
     sd, sv, sa = (float(value) for value in found[:3])
     when = [float(steps * record.dt) for steps in found[3:]]
     omega = 2.0 * math.pi / period
