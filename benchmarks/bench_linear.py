@@ -190,9 +190,12 @@ def small_calls(record: Record) -> None:
     starts = _kernels.chunk_starts(used)
     zeros, out, load = np.zeros(20), np.empty((3, 20)), -short.accel
     timings = {}
-    for label, kernel in (("one thread", _kernels.peaks_serial), ("parallel", _kernels.peaks)):
-        kernel(load, coef, used, starts, zeros, zeros, out)
-        timings[label] = best_of(lambda k=kernel: [k(load, coef, used, starts, zeros, zeros, out) for _ in range(50)], REPEATS) / 50
+    owner = _kernels.balance(used, starts, numba.get_num_threads())
+    kernels = {"one thread": lambda: _kernels.peaks_serial(load, coef, used, starts, zeros, zeros, out),
+               "parallel": lambda: _kernels.peaks(load, coef, used, starts, zeros, zeros, out, owner)}  # fmt: skip
+    for label, kernel in kernels.items():
+        kernel()
+        timings[label] = best_of(lambda k=kernel: [k() for _ in range(50)], REPEATS) / 50
     print(f"   20 periods x 2,000 steps (below the serial threshold of {_kernels.SERIAL_WORK:,} oscillator-steps): "
           f"one thread {timings['one thread'] * 1e6:.0f} us, parallel {timings['parallel'] * 1e6:.0f} us "
           f"(parallel / one thread {timings['parallel'] / timings['one thread']:.1f}x)")

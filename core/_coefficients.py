@@ -31,7 +31,7 @@ def newmark(omega, zeta, h, beta, gamma) -> NDArray[np.float64]:
     (the same IEEE double arithmetic, without numpy's per-call cost).
     """
     if np.size(omega) == 1 and np.size(zeta) == 1 and np.size(h) == 1:
-        return _newmark_one(float(np.ravel(omega)[0]), float(np.ravel(zeta)[0]), float(np.ravel(h)[0]), beta, gamma)
+        return newmark_one(float(np.ravel(omega)[0]), float(np.ravel(zeta)[0]), float(np.ravel(h)[0]), beta, gamma)
     omega = np.asarray(omega, dtype=np.float64)
     zeta = np.asarray(zeta, dtype=np.float64)
     h = np.asarray(h, dtype=np.float64)
@@ -49,7 +49,7 @@ def newmark(omega, zeta, h, beta, gamma) -> NDArray[np.float64]:
     return out
 
 
-def _newmark_one(omega: float, zeta: float, h: float, beta: float, gamma: float) -> NDArray[np.float64]:
+def newmark_one(omega: float, zeta: float, h: float, beta: float, gamma: float) -> NDArray[np.float64]:
     """`newmark` for one oscillator, on floats: (10, 1)."""
     constants = newmark_constants.py_func(h, beta, gamma)
     c, k = 2.0 * zeta * omega, omega * omega

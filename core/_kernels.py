@@ -177,6 +177,7 @@ def balance(substeps, starts, parts):
     for chunk in range(n_chunks):
         work[chunk] = _lanes(starts[chunk + 1] - starts[chunk]) * substeps[starts[chunk]]
     owner = np.empty(n_chunks, dtype=np.int64)
+    parts = max(1, min(parts, n_chunks))
     load = np.zeros(parts)
     for chunk in np.argsort(-work, kind="mergesort"):
         part = np.argmin(load)
@@ -186,7 +187,7 @@ def balance(substeps, starts, parts):
 
 
 @njit(cache=True, parallel=True, fastmath=True)
-def peaks(load, coef, substeps, starts, u0, v0, out):
+def peaks(load, coef, substeps, starts, u0, v0, out, owner):
     """Peak |u|, |v| and |ü + ü_g| of many oscillators, read at every sub-step.
 
     Parameters
@@ -197,6 +198,7 @@ def peaks(load, coef, substeps, starts, u0, v0, out):
     starts : (n_chunks + 1,) int64, chunk boundaries (``chunk_starts``)
     u0, v0 : (n_osc,) float64 initial state
     out : (3, n_osc) float64, filled with the three peaks
+    owner : (n_chunks,) int64, the thread of each chunk (``balance``)
 
     The load is linear inside each record step, so sub-step m of s runs from
     p0 + (p1 - p0)·m/s to p0 + (p1 - p0)·(m + 1)/s. Oscillators of a chunk
@@ -206,11 +208,10 @@ def peaks(load, coef, substeps, starts, u0, v0, out):
     `VISIT` sub-steps with the state held in registers (the loads of those
     sub-steps queued first, whatever the sub-step count), so sub-stepped and
     plain chunks run the same loop, over a multiple of `LANES` lanes. Each
-    thread runs the chunks `balance` gives it.
+    thread runs the chunks `owner` gives it.
     """
     n_chunks = starts.shape[0] - 1
-    parts = max(1, min(get_num_threads(), n_chunks))
-    owner = balance(substeps, starts, parts)
+    parts = owner.max() + 1 if n_chunks else 0
     for part in prange(parts):
         for chunk in range(n_chunks):
             if owner[chunk] == part:
@@ -225,10 +226,12 @@ def peaks_serial(load, coef, substeps, starts, u0, v0, out):
 
 
 def spectrum_peaks(load, coef, substeps, starts, u0, v0, out):
-    """`peaks`, or `peaks_serial` when the work is below `SERIAL_WORK` oscillator-sub-steps."""
+    """`peaks` over chunks shared by `balance`, or `peaks_serial` below `SERIAL_WORK` oscillator-sub-steps."""
     work = (load.shape[0] - 1) * int(substeps.sum())
-    kernel = peaks_serial if work < SERIAL_WORK else peaks
-    kernel(load, coef, substeps, starts, u0, v0, out)
+    if work < SERIAL_WORK:
+        peaks_serial(load, coef, substeps, starts, u0, v0, out)
+    else:
+        peaks(load, coef, substeps, starts, u0, v0, out, balance(substeps, starts, get_num_threads()))
 
 
 @njit(cache=True)

@@ -366,8 +366,11 @@ def _step_coefficients(
     dt: float, periods: NDArray[np.float64], dampings: NDArray[np.float64], method: Method, ratio: float | None
 ) -> tuple[NDArray[np.float64], NDArray[np.int64]]:
     """Map coefficients (10, n) of ONE sub-step h = dt/s, and the sub-step counts s."""
-    omega = 2.0 * np.pi / periods
     substeps = substep_counts(dt, periods, method, ratio)
+    if periods.size == 1 and method.is_newmark:  # one oscillator: the same step on floats, no array overhead
+        one = 2.0 * math.pi / float(periods[0])
+        return _coefficients.newmark_one(one, float(dampings[0]), dt / int(substeps[0]), method.beta, method.gamma), substeps
+    omega = 2.0 * np.pi / periods
     step = dt / substeps
     if not method.is_newmark:
         return _coefficients.exact(omega, dampings, step), substeps

@@ -491,8 +491,26 @@ def test_serial_and_parallel_spectrum_kernels_agree_bit_for_bit():
     starts, zeros = _kernels.chunk_starts(used), np.zeros(150)
     serial, parallel = np.empty((3, 150)), np.empty((3, 150))
     _kernels.peaks_serial(load, coef, used, starts, zeros, zeros, serial)
-    _kernels.peaks(load, coef, used, starts, zeros, zeros, parallel)
+    _kernels.peaks(load, coef, used, starts, zeros, zeros, parallel, _kernels.balance(used, starts, 2))
     np.testing.assert_array_equal(serial, parallel)  # exact: each chunk is computed by the same compiled code
+
+
+def test_balance_shares_chunks_by_work_longest_first():
+    """Threads get chunks by lanes x sub-steps, so the heavy sub-stepped chunks sorted last are split."""
+    from groundstep.core import _kernels
+
+    # chunks: four of 64 lanes x 1 sub-step, then 8 lanes x 10 and 16 lanes x 5 (80 lane-steps each)
+    substeps = np.array([1] * 256 + [5] * 13 + [10] * 8, dtype=np.int64)
+    substeps.sort()
+    starts = _kernels.chunk_starts(substeps)
+    owner = _kernels.balance(substeps, starts, 2)
+    work = np.zeros(2)
+    for chunk, part in enumerate(owner):  # 13 oscillators run 16 lanes (LANES = 8)
+        lanes = -(-(starts[chunk + 1] - starts[chunk]) // _kernels.LANES) * _kernels.LANES
+        work[part] += lanes * substeps[starts[chunk]]
+    # total 256 + 80 + 80 = 416 lane-steps; longest first (80, 80, 64, 64, 64, 64) splits it 208 / 208
+    np.testing.assert_array_equal(np.sort(work), [208.0, 208.0])
+    assert set(_kernels.balance(substeps, starts, 8).tolist()) == set(range(6))  # never more threads than chunks
 
 
 @pytest.mark.parametrize("count", [7, 700])  # below and above SERIAL_WORK: the serial and the parallel kernel
