@@ -407,8 +407,12 @@ def test_cli_fill_stores_a_copy_and_leaves_the_input(tmp_path):
 
 
 def test_calc_template_clipped_record_gives_the_whole_range_answer(office, tmp_path):
-    """A stray text cell below the record, after blank rows: the clipped STEP_ cell gives the whole range's error."""
-    from groundstep.addin.calc.template import USED_ROWS_CELL
+    """A stray text cell below the record, after blank rows: the clipped STEP_ cell gives the whole range's error.
+
+    The template hands the record over as one row, so the message names the cell as a column
+    (calc.template.RECORD_POSITION, which the Record sheet's note states).
+    """
+    from groundstep.addin.calc.template import RECORD_POSITION, USED_ROWS_CELL
 
     document = office.open(_filled_template(tmp_path))
     record_sheet = document.Sheets.getByName("Record")
@@ -421,6 +425,24 @@ def test_calc_template_clipped_record_gives_the_whole_range_answer(office, tmp_p
     peaks = document.Sheets.getByName("Peaks")
     period, damping = peaks.getCellByPosition(0, 6).getValue(), peaks.getCellByPosition(1, 6).getValue()
     expected = STEP_PEAK(record, 0.01, "g", period, damping, "SD", "average")
-    assert isinstance(expected, str) and expected.startswith(ERROR_PREFIX)
-    assert peaks.getCellByPosition(2, 6).getString() == expected
+    assert expected == f"{ERROR_PREFIX}row {_RECORD.n + 2} of the acceleration range is blank"
+    assert peaks.getCellByPosition(2, 6).getString() == expected.replace("row", "column", 1)
+    assert record_sheet.getCellRangeByName("B1").getString().endswith(RECORD_POSITION)
+    document.close(True)
+
+
+def test_calc_template_passes_an_error_in_the_record_on(office, tmp_path):
+    """An error value in a record cell (=NA(), =1/0) reaches the template's STEP_ cells as that error."""
+    document = office.open(_filled_template(tmp_path))
+    record_sheet = document.Sheets.getByName("Record")
+    peaks = document.Sheets.getByName("Peaks")
+    # LibreOffice's error codes (formula/errorcodes.hxx): 32767 is #N/A, 532 is #DIV/0!
+    for formula, code in (("=NA()", 32767), ("=1/0", 532)):
+        record_sheet.getCellRangeByName("A300").setFormula(formula)
+        document.calculateAll()
+        for column in (2, 9):  # a STEP_PEAK and a STEP_DUCTILITY cell
+            assert peaks.getCellByPosition(column, 6).getError() == code, (formula, column)
+    record_sheet.getCellRangeByName("A300").setValue(0.01)
+    document.calculateAll()
+    assert peaks.getCellByPosition(2, 6).getError() == 0
     document.close(True)
