@@ -13,8 +13,14 @@ the template before that: every STEP_ cell given the whole record column
                     first repeat only: the component's caches live in soffice)
 * unchanged recalc: ``calculateAll`` again (every call a cache hit): the
                     per-call cost of the extension
-* edit and recalc:  the time step cell set to a value no repeat used before,
-                    then ``calculateAll`` (both timed): every result recomputed
+* edit dt:          the time step cell set to a value no repeat used before,
+                    then ``calculate`` (the dirty cells, what auto-calculation
+                    recalculates after an edit; both timed): every STEP_ result
+                    recomputed. The target figure.
+* edit dt + calculateAll: the same edit, then every cell recalculated (the
+                    figure before; it adds an unchanged recalculation)
+* edit a sample:    one record sample set to a new value, then ``calculate``
+                    (the used-rows cell and every STEP_ cell recomputed)
 * Python, direct:   the same calls (same cell values) made from Python,
                     cold cache and warm cache
 
@@ -85,22 +91,30 @@ def _filled(work: Path, record, variant: str) -> Path:
     return path
 
 
-def _calc_figures(office: Office, path: Path, repeats: int, steps) -> dict[str, float]:
+def _calc_figures(office: Office, path: Path, steps, samples) -> dict[str, float]:
+    """One open of `path`: first, unchanged, edits of the time step and of one record sample [s]."""
     figures: dict[str, float] = {}
-    for _ in range(repeats):
-        document = office.open(path)
-        started = time.perf_counter()
-        document.calculateAll()  # the component's caches live in soffice: cold only on the first run
-        figures["first"] = min(figures.get("first", 1e9), time.perf_counter() - started)
-        started = time.perf_counter()
-        document.calculateAll()
-        figures["unchanged"] = min(figures.get("unchanged", 1e9), time.perf_counter() - started)
-        for dt in (next(steps), next(steps)):  # never a time step seen before: no cached result
-            started = time.perf_counter()  # with auto-calculation on, the edit itself may recalculate
-            document.Sheets.getByName("Input").getCellRangeByName("B15").setValue(dt)
-            document.calculateAll()
-            figures["edit"] = min(figures.get("edit", 1e9), time.perf_counter() - started)
-        document.close(True)
+    document = office.open(path)
+    inputs, record = document.Sheets.getByName("Input"), document.Sheets.getByName("Record")
+    result = document.Sheets.getByName("Peaks").getCellRangeByName("C7")  # an SD cell
+
+    def timed(name: str, edit=None, recalc=document.calculate) -> None:
+        before = result.getValue()
+        started = time.perf_counter()  # with auto-calculation on, the edit itself may recalculate
+        if edit is not None:
+            edit()
+        recalc()
+        figures[name] = min(figures.get(name, 1e9), time.perf_counter() - started)
+        if edit is not None and result.getValue() == before:
+            raise RuntimeError(f"{name}: the STEP_ cells did not recalculate")
+
+    timed("first", recalc=document.calculateAll)  # the component's caches live in soffice: cold on the first open
+    timed("unchanged", recalc=document.calculateAll)  # every call a cache hit
+    for _ in range(2):  # a time step, a sample never seen before: no cached result
+        timed("edit", lambda: inputs.getCellRangeByName("B15").setValue(next(steps)))
+        timed("edit, full", lambda: inputs.getCellRangeByName("B15").setValue(next(steps)), document.calculateAll)
+        timed("sample", lambda: record.getCellRangeByName("A300").setValue(next(samples)))
+    document.close(True)
     return figures
 
 
@@ -114,12 +128,13 @@ def main() -> None:
     paths = {variant: _filled(work, record, variant) for variant in variants}
     oxt = build_extension(work / "groundstep.oxt", site.getsitepackages(), macro=False)  # the functions only
     steps = (0.0101 + 1e-6 * k for k in itertools.count())
+    samples = (0.05 + 1e-4 * k for k in itertools.count())
     with Office(work / "profile") as office:
         office.add_extension(oxt)
         figures: dict[str, dict[str, float]] = {}
         for _ in range(repeats):  # variants alternate, so a busy spell of the machine hits both
             for variant, path in paths.items():
-                once = _calc_figures(office, path, 1, steps)
+                once = _calc_figures(office, path, steps, samples)
                 figures[variant] = {k: min(v, figures.get(variant, {}).get(k, 1e9)) for k, v in once.items()}
         document = office.open(paths["row"])
         held = document.Sheets.getByName("Record").getCellRangeByName(f"A1:A{RECORD_ROWS + 1}").getDataArray()
@@ -145,15 +160,18 @@ def main() -> None:
     print(f"Calc template, {record.n} samples, record column of {RECORD_ROWS + 1:,} rows; best of {repeats}")
     for variant in variants:
         f = figures[variant]
-        print(f"  {_LABELS[variant]:27s} first {f['first']:8.3f} s  unchanged {f['unchanged']:8.3f} s  "
-              f"edit and recalc {f['edit']:8.3f} s  (edit / Python cold {f['edit'] / direct['cold']:.2f})")  # fmt: skip
+        print(f"  {_LABELS[variant]:27s} first {f['first']:7.3f} s  unchanged {f['unchanged']:7.3f} s  "
+              f"edit dt {f['edit']:7.3f} s  edit dt + calculateAll {f['edit, full']:7.3f} s  "
+              f"edit a sample {f['sample']:7.3f} s")  # fmt: skip
     for key, label in (("", "the whole range"), ("used ", "the used rows")):
         print(f"  Python, the same {calls} calls on {label}, cold {direct[key + 'cold']:8.3f} s, warm "
               f"{direct[key + 'warm']:8.4f} s ({direct[key + 'warm'] / calls * 1e3:.3f} ms a call)")  # fmt: skip
+    reference = direct["used cold"]
     for variant in variants:
-        print(f"  Calc edit and recalc ({_LABELS[variant]}) / Python cold on the used rows: "
-              f"{figures[variant]['edit'] / direct['used cold']:.2f}")  # fmt: skip
-    print(f"  edit and recalc, column / row: {figures['column']['edit'] / figures['row']['edit']:.2f}x")
+        f = figures[variant]
+        print(f"  {_LABELS[variant]} / Python cold on the used rows: edit dt {f['edit'] / reference:.2f}, "
+              f"edit dt + calculateAll {f['edit, full'] / reference:.2f}, edit a sample {f['sample'] / reference:.2f}")
+    print(f"  edit dt, column / row: {figures['column']['edit'] / figures['row']['edit']:.2f}x")
 
 
 if __name__ == "__main__":

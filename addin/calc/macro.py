@@ -2,8 +2,9 @@
 
 The extension carries one Python macro file (`MACRO_FILE`, written by
 `macro_source` into `MACRO_FOLDER`), which LibreOffice's Python script
-provider lists under Tools > Macros > Run Macro > Application Macros >
-``groundstep.oxt`` > ``groundstep_fill``. Its ``fill_results`` adds the
+provider lists under Tools > Macros > Run Macro > My Macros >
+``groundstep.oxt`` > ``groundstep_fill`` (Application Macros for an
+extension installed for all users). Its ``fill_results`` adds the
 recorded site folders (as the add-in loader does) and calls `fill_results`
 here with the macro's ``XSCRIPTCONTEXT``: the open document's named input
 cells are read, the report computed, and the result sheets written into a
