@@ -134,6 +134,8 @@ def one_thread(record: Record) -> None:
     load = -record.accel[: steps // 4 * 4 + 1]  # the reference takes whole visits of 4 steps
     ref_out = np.empty((3, N_PERIODS))
     reference_peaks(load, coef, ref_out)
+    used = np.ones(N_PERIODS, dtype=np.int64)
+    starts, zeros, kernel_out = _kernels.chunk_starts(used), np.zeros(N_PERIODS), np.empty((3, N_PERIODS))
     state = np.ones((8, 64))
     visits = 4000
     multiply_add_chains(state, 0.999999, 1e-9, 2)
@@ -141,6 +143,7 @@ def one_thread(record: Record) -> None:
     times = alternated({
         "spectrum": lambda: elastic_spectrum(record, plain, 0.05),
         "reference": lambda: reference_peaks(load, coef, ref_out),
+        "kernel": lambda: _kernels.spectrum_peaks(load, coef, used, starts, zeros, zeros, kernel_out),
         "sub-stepped": lambda: elastic_spectrum(record, short, 0.05),
         "bound": lambda: multiply_add_chains(state, 0.999999, 1e-9, visits),
     }, REPEATS)  # fmt: skip
@@ -148,11 +151,13 @@ def one_thread(record: Record) -> None:
     reference = times["reference"] / (N_PERIODS * (load.size - 1)) * 1e9
     bound = 10.0 * times["bound"] / (64 * 8 * 16 * visits) * 1e9
     per_sub = times["sub-stepped"] / sub_steps * 1e9
+    kernel = times["kernel"] / (N_PERIODS * (load.size - 1)) * 1e9
     spectrum = elastic_spectrum(Record(record.accel[: load.size], record.dt, "m/s2"), plain, 0.05).sd[0]
     print(f"4. one thread, average acceleration, best of {REPEATS} alternated rounds")
     print(f"  elastic_spectrum 0.1-10 s end to end {per_step:6.3f} ns per oscillator-step (target 0.22)")
     print(f"  tuned reference kernel               {reference:6.3f} ns   spectrum / reference {per_step / reference:4.2f}x "
           f"(target 1.15x; SD agrees to {np.max(np.abs(ref_out[0] - spectrum) / spectrum):.0e} on the first {load.size - 1} steps)")
+    print(f"  its kernel alone (spectrum_peaks)    {kernel:6.3f} ns   kernel / reference {kernel / reference:4.2f}x")
     print(f"  multiply-add bound (10 a step)       {bound:6.3f} ns   spectrum / bound {per_step / bound:4.2f}x, "
           f"reference / bound {reference / bound:4.2f}x")
     print(f"  elastic_spectrum 0.01-10 s           {per_sub:6.3f} ns per oscillator-sub-step: "
