@@ -55,9 +55,12 @@ def warm_up(only: Iterable[str] | None = None) -> dict[str, float]:
     from .record import Record
 
     record = Record(np.sin(np.linspace(0.0, 6.0, 64)), dt=0.02, unit="m/s2")
+    long_record = Record(np.sin(np.linspace(0.0, 600.0, 20_001)), dt=0.02, unit="m/s2")
     calls: dict[str, Callable[[], object]] = {
         "elastic_spectrum (Newmark)": lambda: elastic_spectrum(record, [0.0, 0.01, 0.5], [0.05]),
         "elastic_spectrum (exact)": lambda: elastic_spectrum(record, [0.5], [0.05], method="exact"),
+        # enough oscillator-steps (_kernels.SERIAL_WORK) to load the threaded kernel and its chunk balance too
+        "elastic_spectrum (threaded)": lambda: elastic_spectrum(long_record, np.linspace(0.5, 5.0, 101), [0.05]),
         "linear_response": lambda: linear_response(record, 0.01),
     }
     try:  # the yielding engine, when installed
