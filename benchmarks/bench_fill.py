@@ -24,8 +24,8 @@ from openpyxl import Workbook
 from groundstep.addin.cli import main
 from groundstep.addin.cli.common import settings_from_options
 from groundstep.addin.package.inputs import read_input_workbook
-from groundstep.addin.result.content import build_report
 from groundstep.addin.result import layout as lay
+from groundstep.addin.result.content import build_report
 from groundstep.addin.result.offline import OpenpyxlWriter, write_report
 from groundstep.addin.result.render import Formula, render
 
