@@ -26,6 +26,8 @@ from __future__ import annotations
 from collections.abc import Sequence
 from typing import Any
 
+from groundstep.addin.package.names import lookup_names
+
 __all__ = ["MACRO_FILE", "MACRO_FOLDER", "MACRO_NAME", "fill_results", "macro_source", "script_uri"]
 
 #: Folder of the extension that holds Python macros (its manifest entry is a framework-script).
@@ -61,9 +63,12 @@ def fill_results(context: Any) -> str:
     """
     from .live import fill_document
 
-    document = context.getDocument()
-    if document is None or not hasattr(document, "NamedRanges"):
-        return _refuse(document, "run it from a Calc document made from the Calc template (no spreadsheet is open)")
+    document = _template_document(context)
+    if document is None:
+        return _refuse(
+            context.getDocument(),
+            "run it from a Calc document made from the Calc template (no open spreadsheet names its time-step cell)",
+        )
     result = context.getDesktop().loadComponentFromURL("private:factory/scalc", "_blank", 0, ())
     try:
         report = fill_document(document, target=result, command="fill_results macro (Calc)")
@@ -104,6 +109,33 @@ def {MACRO_NAME}(*args):
 
 g_exportedScripts = ({MACRO_NAME},)
 '''
+
+
+def _template_document(context: Any) -> Any:
+    """The document the macro fills from: the current one, or else the one open spreadsheet made from the template.
+
+    The scripting framework gives a macro the desktop's current component;
+    with no window (headless LibreOffice, a macro started over UNO) there
+    is none, so the open documents are searched for the template's
+    time-step name. Two such documents and no current one: None (the macro
+    cannot tell which one was meant).
+    """
+    current = context.getDocument()
+    if _is_template(current):
+        return current
+    found = []
+    components = context.getDesktop().getComponents().createEnumeration()
+    while components.hasMoreElements():
+        component = components.nextElement()
+        if _is_template(component):
+            found.append(component)
+    return found[0] if len(found) == 1 else None
+
+
+def _is_template(document: Any) -> bool:
+    """True for a spreadsheet that defines the template's time-step cell (or its alias)."""
+    names = getattr(document, "NamedRanges", None)
+    return names is not None and any(names.hasByName(name) for name in lookup_names("dt"))
 
 
 def _refuse(document: Any, reason: str) -> str:
