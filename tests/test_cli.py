@@ -109,7 +109,7 @@ def test_verify_exit_codes(demo, tmp_path, capsys):
     assert main(["verify", str(yielding)]) == 1
     report = capsys.readouterr().out
     assert "MISMATCH  Peaks / Yielding oscillators" in report and "first: H14 holds 1, recomputed" in report
-    assert "1 of 20 checks do not match: Peaks / Yielding oscillators" in report  # 20: with the Verification starting state
+    assert "1 of 21 checks do not match: Peaks / Yielding oscillators" in report  # 21: with the starting state and the build-up table
     other = tmp_path / "other.xlsx"
     openpyxl.Workbook().save(other)
     assert main(["verify", str(other)]) == 2

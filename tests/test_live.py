@@ -152,9 +152,7 @@ def report():
 
 
 def _as_file_keeps(value):
-    """openpyxl writes floats with 16 significant digits ("%.16g", openpyxl.compat.strings.safe_string)."""
-    if isinstance(value, float):
-        return float(f"{value:.16g}")
+    """The file keeps floats exactly (``sheet_xml`` writes repr, the shortest round-trip text)."""
     if isinstance(value, str) and value.startswith("'"):  # Excel's quote prefix: stored as text, not shown
         return value[1:]
     return value

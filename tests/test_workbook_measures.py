@@ -28,8 +28,8 @@ from groundstep.addin.result.verify import verify_workbook
 from groundstep.core import Record, bandpass, baseline_correct, fourier_amplitude, ground_motion_measures
 from groundstep.core.synthetic import synthetic_record
 
-# the file keeps 16 significant digits (openpyxl; 1e-15 relative) and the same core calls on the same
-# samples give the same bits, so stored values agree to that plus one unit conversion (a few ulps)
+# the file keeps every float exactly (repr, the shortest round-trip text) and the same core calls on the
+# same samples give the same bits, so stored values agree to one unit conversion (a few ulps)
 RTOL = 1e-14
 PROCESSING = ReportSettings(periods=(0.1, 0.3, 1.0), dampings=(0.05,), baseline_order=2, low_hz=0.2, high_hz=20.0)
 
@@ -69,12 +69,20 @@ def test_processed_columns_equal_the_core(record, made):
     book = openpyxl.load_workbook(path)
     processed = _processed(record)
     assert_allclose(_column(book, "record_table_accel"), processed.accel_in("cm/s2"), rtol=RTOL, atol=0.0)
-    # cm/s and cm for a cm/s² record (the matching length unit): x100 from m/s and m (SI prefix)
-    assert_allclose(_column(book, "record_table_velocity"), 100 * processed.ground_velocity(), rtol=RTOL, atol=1e-300)
-    assert_allclose(_column(book, "record_table_displacement"), 100 * processed.ground_displacement(), rtol=RTOL,
+    # cm/s and cm for a cm/s² record (the matching length unit): x100 from m/s and m (SI prefix); the padded
+    # record has 6,801 samples, over BUILD_UP_ROWS (4,001): every 2nd sample, ceil(6800 / 4000) = 2, and
+    # 6800 is even, so the last sample is among them
+    picks = np.arange(0, 6801, 2)
+    assert processed.n == 6801 and sheets.BUILD_UP_ROWS == 4001
+    assert_allclose(_column(book, "motion_table_time"), processed.time[picks] + processed.time[0] - processed.time[
+        (processed.n - record.n) // 2], rtol=0.0, atol=1e-12)  # fmt: skip
+    assert_allclose(_column(book, "motion_table_velocity"), 100 * processed.ground_velocity()[picks], rtol=RTOL,
                     atol=1e-300)  # fmt: skip
-    # the record as read, 16 significant digits in the file (openpyxl)
-    assert_allclose(_column(book, "raw_table_accel"), stored_record(record).accel_in("cm/s2"), rtol=1e-15, atol=0.0)
+    assert_allclose(_column(book, "motion_table_displacement"), 100 * processed.ground_displacement()[picks],
+                    rtol=RTOL, atol=1e-300)  # fmt: skip
+    assert "every 2nd sample and the last (3,401 of 6,801)" in book[sheets.RECORD]["D7"].value
+    # the record as read, kept exactly in the file (repr of each float)
+    assert _column(book, "raw_table_accel") == stored_record(record).accel_in("cm/s2").tolist()
     # the pads: (n_processed - n_raw)/2 samples before the first sample as read, at negative times
     time = _column(book, "record_table_time")
     pad = (processed.n - record.n) // 2
@@ -105,7 +113,8 @@ def test_arias_build_up_marks_d5_95(record, made):
     report, _ = made
     measures = ground_motion_measures(_processed(record))
     table = report.content["arias_table"]
-    assert_allclose(table["build_up"], measures.arias_build_up, rtol=0.0, atol=0.0)
+    # every 2nd of the 6,801 padded samples (sheets.BUILD_UP_ROWS = 4,001; see the Record sheet's test)
+    assert_allclose(table["build_up"], measures.arias_build_up[::2], rtol=0.0, atol=0.0)
     inside = [v is not None for v in table["within_d5_95"]]
     fields = report.content["measures"]
     times = np.asarray(table["time"])

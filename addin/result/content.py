@@ -252,7 +252,8 @@ def build_report(
         "check": {},
         "findings": findings,
         "record": {"record_unit": record.unit, "dt": record.dt, "unit_factor": ACCELERATION_UNITS[record.unit]},
-        "record_table": _record_columns(record, out, shift),
+        "record_table": _record_columns(record, shift),
+        "motion_table": _motion_columns(record, out, shift),
         "measures": _measures_block(measures, "measure_", out, shift),
         "arias_table": _arias_columns(measures, shift),
         **fourier,
@@ -268,7 +269,8 @@ def build_report(
         "settings": _settings_block(settings, spectrum, method),
     }
     if raw_measures is not None:
-        content["raw_table"] = _record_columns(raw, out, 0.0)
+        content["raw_table"] = _record_columns(raw, 0.0)
+        content["raw_motion_table"] = _motion_columns(raw, out, 0.0)
         content["raw_measures"] = _measures_block(raw_measures, "raw_measure_", out, 0.0)
     if ductility is not None:
         content.update(_ductility_blocks(ductility, settings, method))
@@ -351,12 +353,18 @@ def _record_summary(raw: Record, measures: GroundMotionMeasures, out: OutputUnit
     }
 
 
-def _record_columns(record: Record, out: OutputUnits, shift: float) -> dict[str, list[float]]:
+def _record_columns(record: Record, shift: float) -> dict[str, list[float]]:
+    """Time [s] and acceleration (the record's unit) at every sample."""
+    return {"time": (record.time + shift).tolist(), "accel": record.accel_in(record.unit).tolist()}
+
+
+def _motion_columns(record: Record, out: OutputUnits, shift: float) -> dict[str, list[float]]:
+    """Time, ground velocity and displacement at the samples of the build-up table (``sheets.sample_picks``)."""
+    picks = np.asarray(sheets.sample_picks(record.n), dtype=np.intp)
     return {
-        "time": (record.time + shift).tolist(),
-        "accel": record.accel_in(record.unit).tolist(),
-        "velocity": np.asarray(out.velocity_from_si(record.ground_velocity())).tolist(),
-        "displacement": np.asarray(out.length_from_si(record.ground_displacement())).tolist(),
+        "time": (record.time[picks] + shift).tolist(),
+        "velocity": np.asarray(out.velocity_from_si(record.ground_velocity()[picks])).tolist(),
+        "displacement": np.asarray(out.length_from_si(record.ground_displacement()[picks])).tolist(),
     }
 
 
@@ -371,8 +379,10 @@ def _measures_block(measures: GroundMotionMeasures, prefix: str, out: OutputUnit
 
 
 def _arias_columns(measures: GroundMotionMeasures, shift: float) -> dict[str, list[Any]]:
-    build_up = measures.arias_build_up
-    time = np.arange(build_up.size) * measures.dt  # the core's own times, from the first sample analysed
+    """I_A(t) / I_A at the samples of the build-up table, and again inside D5-95 only."""
+    picks = np.asarray(sheets.sample_picks(measures.arias_build_up.size), dtype=np.intp)
+    build_up = measures.arias_build_up[picks]
+    time = picks * measures.dt  # the core's own times, from the first sample analysed
     inside = (time >= measures.d5_95_start) & (time <= measures.d5_95_end)  # all False when the times are NaN
     return {
         "time": (time + shift).tolist(),

@@ -29,6 +29,7 @@ from .layout import (
 
 __all__ = [
     "AUDIT",
+    "BUILD_UP_ROWS",
     "DUCTILITY",
     "EXACT_TOLERANCE",
     "CHART_POINTS",
@@ -44,7 +45,11 @@ __all__ = [
     "VERIFY_WINDOW",
     "YIELDING_TITLE",
     "damping_label",
+    "picks_count",
+    "picks_stride",
+    "picks_text",
     "result_layout",
+    "sample_picks",
 ]
 
 
@@ -90,6 +95,11 @@ MEASURE_FIELDS: tuple[tuple[str, str, str, str, str], ...] = (
     ("predominant_period", "Predominant period Tp", "time", FIXED4,
      "period of the largest 5 %-damped PSA among 160 periods, 0.02-5 s"),
 )  # fmt: skip
+#: Most rows of the build-up tables (the Record sheet's velocity and displacement, the Measures
+#: sheet's Arias intensity): a longer record is listed at every k-th sample and the last, the
+#: acceleration itself at every sample. A choice of ours: 4,000 points draw a smooth curve, and the
+#: 40,000-sample workbook stays near 1 MB (those columns would be 60 % of it at every sample).
+BUILD_UP_ROWS = 4001
 #: The sheet of the constant-ductility spectrum (present when targets and periods are given).
 DUCTILITY = "Ductility"
 #: First data row of the Record table; the Verification steps start on the same row.
@@ -276,41 +286,80 @@ def _record(n_samples, unit, length_unit, velocity_unit, n_raw) -> Sheet:
         ),
     )  # fmt: skip
 
-    def columns(accel_format: str) -> tuple[Column, ...]:
-        return (
-            Column("time", "Time", "s", FIXED3, 10.0),
-            Column("accel", "Acceleration", unit, accel_format, 16.0),
-            Column("velocity", "Velocity", velocity_unit, SCIENTIFIC, 14.0),
-            Column("displacement", "Displacement", length_unit, SCIENTIFIC, 14.0),
-        )
+    def samples(key: str, title: str, column: int, rows: int, checked: bool) -> Table:
+        return Table(key, title, RECORD_FIRST_ROW - 2, column,
+                     (Column("time", "Time", "s", FIXED3, 10.0), Column("accel", "Acceleration", unit, GENERAL, 16.0)),
+                     rows, checked=checked)  # fmt: skip
+
+    def motion(key: str, column: int, rows: int, what: str) -> Table:
+        return Table(key, f"Ground velocity and displacement{what}: {picks_text(rows)}", RECORD_FIRST_ROW - 2, column,
+                     (Column("time", "Time", "s", FIXED3, 10.0),
+                      Column("velocity", "Velocity", velocity_unit, SCIENTIFIC, 14.0),
+                      Column("displacement", "Displacement", length_unit, SCIENTIFIC, 14.0)),
+                     picks_count(rows), checked=True)  # fmt: skip
 
     processed = n_raw > 0
     title = "Processed samples (every result is computed from these)" if processed else "Samples"
-    table = Table("record_table", title, RECORD_FIRST_ROW - 2, 1, columns(GENERAL), n_samples, checked=True)
-    blocks: tuple[Fields | Table | FormulaTable, ...] = (fields, table)
-    charts = _record_charts("record_table", "Processed ground" if processed else "Ground", 12 if processed else 6,
+    blocks: tuple[Fields | Table | FormulaTable, ...] = (
+        fields, samples("record_table", title, 1, n_samples, True), motion("motion_table", 4, n_samples, ""),
+    )  # fmt: skip
+    prefix = "Processed ground" if processed else "Ground"
+    charts = _record_charts("record_table", "motion_table", prefix, 16 if processed else 8,
                             unit, length_unit, velocity_unit)  # fmt: skip
-    note = ""
+    note = f"Velocity and displacement: {picks_text(n_samples)} (the acceleration at every sample in columns A:B)."
     if processed:
-        raw = Table("raw_table", "Record as read (before processing; verify replays the processing from it)",
-                    RECORD_FIRST_ROW - 2, 7, columns(GENERAL), n_raw)  # fmt: skip
-        blocks += (raw,)
-        charts += _record_charts("raw_table", "As read: ground", 22, unit, length_unit, velocity_unit)
+        blocks += (
+            samples("raw_table", "Record as read (before processing; verify replays the processing from it)", 8,
+                    n_raw, False),
+            motion("raw_motion_table", 11, n_raw, " as read"),
+        )  # fmt: skip
+        charts += _record_charts("raw_table", "raw_motion_table", "As read: ground", 26, unit, length_unit,
+                                 velocity_unit)  # fmt: skip
         note = ("Processed as listed on the Audit sheet. A band-pass record keeps its zero pads (Boore 2005): "
-                "times count from the first sample as read, so the front pad has negative times.")  # fmt: skip
+                "times count from the first sample as read, so the front pad has negative times. "
+                f"Velocity and displacement: {picks_text(n_samples)} of the processed record, "
+                f"{picks_text(n_raw)} as read (the acceleration at every sample in columns A:B and H:I).")  # fmt: skip
     return Sheet(RECORD, "Ground acceleration record", blocks, charts, note=note)
 
 
-def _record_charts(table: str, prefix: str, column: int, unit, length_unit, velocity_unit) -> tuple[Chart, ...]:
-    """Acceleration, velocity and displacement against time, stacked in `column`."""
-    quantities = (("accel", "acceleration", unit), ("velocity", "velocity", velocity_unit),
-                  ("displacement", "displacement", length_unit))  # fmt: skip
+def picks_stride(n_samples: int) -> int:
+    """k of the build-up tables: every k-th sample (and the last), so they hold at most `BUILD_UP_ROWS` rows."""
+    return max(1, -(-(n_samples - 1) // (BUILD_UP_ROWS - 1))) if n_samples > BUILD_UP_ROWS else 1
+
+
+def sample_picks(n_samples: int) -> list[int]:
+    """The samples (0-based) a build-up table lists: 0, k, 2k, ... and the last one."""
+    stride = picks_stride(n_samples)
+    picks = list(range(0, n_samples, stride))
+    if picks and picks[-1] != n_samples - 1:
+        picks.append(n_samples - 1)
+    return picks
+
+
+def picks_count(n_samples: int) -> int:
+    """Rows of a build-up table of a record of `n_samples` samples."""
+    return len(sample_picks(n_samples))
+
+
+def picks_text(n_samples: int) -> str:
+    """What a build-up table lists, for its title and the sheet's note."""
+    stride = picks_stride(n_samples)
+    if stride == 1:
+        return "every sample"
+    suffix = "th" if 10 <= stride % 100 <= 20 else {1: "st", 2: "nd", 3: "rd"}.get(stride % 10, "th")
+    return f"every {stride}{suffix} sample and the last ({picks_count(n_samples):,} of {n_samples:,})"
+
+
+def _record_charts(table: str, motion: str, prefix: str, column: int, unit, length_unit, velocity_unit) -> tuple[Chart, ...]:
+    """Acceleration (every sample), velocity and displacement (the build-up table) against time, stacked in `column`."""
+    quantities = ((table, "accel", "acceleration", unit), (motion, "velocity", "velocity", velocity_unit),
+                  (motion, "displacement", "displacement", length_unit))  # fmt: skip
     return tuple(
         Chart(
-            f"{table}_{key}_chart", f"{prefix} {name}", table, "time", ((key, name),),
+            f"{source}_{key}_chart", f"{prefix} {name}", source, "time", ((key, name),),
             "Time [s]", f"{name.capitalize()} [{axis}]", 3 + 19 * index, column,
         )
-        for index, (key, name, axis) in enumerate(quantities)
+        for index, (source, key, name, axis) in enumerate(quantities)
     )  # fmt: skip
 
 
@@ -334,13 +383,13 @@ def _measures(n_samples, unit, length_unit, velocity_unit, processed, n_frequenc
     top = 5 + len(MEASURE_FIELDS) + 2
     tables: tuple[Fields | Table | FormulaTable, ...] = (
         Table(
-            "arias_table", "Arias intensity build-up (Arias 1970)", top, 1,
+            "arias_table", f"Arias intensity build-up (Arias 1970): {picks_text(n_samples)}", top, 1,
             (
                 Column("time", "Time", "s", FIXED3, 10.0),
                 Column("build_up", "I_A(t) / I_A", "-", FIXED4, 14.0),
                 Column("within_d5_95", "Within D5-95 (blank outside)", "-", FIXED4, 14.0),
             ),
-            n_samples, checked=True,
+            picks_count(n_samples), checked=True,
         ),
         Table(
             "fourier_table", "Fourier amplitude |A(f)| = |FFT|·dt (no smoothing; f = 0 left out)", top, 5,

@@ -1,0 +1,142 @@
+"""The cells of a worksheet as SpreadsheetML ``<sheetData>`` text (ECMA-376 Part 1, §18.3.1).
+
+`SheetCells` collects the rectangles of values that ``render`` hands a
+writer and streams them out as the ``<sheetData>`` element of a worksheet
+part, row by row. ``offline.OpenpyxlWriter`` uses it for every cell of the
+result workbook while openpyxl writes the rest of the package (styles,
+defined names, column widths, page set-up, charts), so the layout stays the
+one description both writers walk; only the backend of the cells differs.
+
+What is written (all of it read back by openpyxl, Excel and LibreOffice):
+
+- a number as ``<v>repr(x)</v>``: the shortest text that reads back as the
+  same float64 (exact, and shorter than a fixed 17 digits); integers as
+  they are; a NaN or infinity is refused with the sheet and cell named
+  (the xlsx format has no such number, and a blank would hide it);
+- text as an inline string (``t="inlineStr"``), formulas as ``<f>`` without
+  the leading ``=``, Booleans as ``t="b"``; None writes a blank cell that
+  keeps its format (no cell at all under the default format);
+- the reference ``r`` only on a row and on a cell that does not follow the
+  previous cell of its row (both attributes are optional, §18.3.1.4 and
+  §18.3.1.73: a cell without ``r`` is the next column), which keeps a
+  40,000-row column a third smaller in the file.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from collections.abc import Callable, Iterator, Sequence
+from typing import Any
+
+from .render import Formula, column_letter
+
+__all__ = ["SheetCells"]
+
+#: Characters XML 1.0 cannot hold (C0 controls other than tab, line feed, carriage return).
+_ILLEGAL = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f]")
+#: Rows of sheet XML joined into one piece of text before it is handed on (a few hundred kB).
+_CHUNK_ROWS = 2000
+
+
+def _escape(text: str) -> str:
+    return _ILLEGAL.sub(" ", text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;"))
+
+
+class SheetCells:
+    """The cells of one worksheet, kept as SpreadsheetML text per row until `xml` streams them.
+
+    `style` maps (number format or None, bold) to the cell-format index
+    (``s``) of the workbook's style sheet; the owner registers the formats.
+    """
+
+    def __init__(self, name: str, style: Callable[[str | None, bool], int]) -> None:
+        self.name = name
+        self._style = style
+        self._rows: dict[int, list[tuple[int, str]]] = {}
+        self.max_row = 0
+        self.max_column = 0
+
+    def write(self, row: int, column: int, values: Sequence[Sequence[Any]], number_format: str | None, bold: bool) -> None:
+        """Keep a rectangle of values whose top-left cell is (`row`, `column`), 1-based."""
+        index = self._style(number_format, bold)
+        style = f' s="{index}"' if index else ""
+        rows = self._rows
+        for i, line in enumerate(values):
+            cells = rows.setdefault(row + i, [])
+            for j, value in enumerate(line):
+                if value is None:
+                    if style:  # a blank cell keeps its format, as a spreadsheet keeps one typed into it
+                        cells.append((column + j, f"{style}/>"))
+                    continue
+                cells.append((column + j, self._cell(value, style, row + i, column + j)))
+        if values:
+            self.max_row = max(self.max_row, row + len(values) - 1)
+            self.max_column = max(self.max_column, column + max(len(line) for line in values) - 1)
+
+    def write_column(self, row: int, column: int, values: Sequence[Any], number_format: str | None) -> None:
+        """Keep one column of values from (`row`, `column`) down: the fast path for long numeric columns."""
+        index = self._style(number_format, False)
+        head = f' s="{index}"><v>' if index else "><v>"
+        rows = self._rows
+        for i, value in enumerate(values, start=row):
+            if type(value) is float and math.isfinite(value):
+                rows.setdefault(i, []).append((column, f"{head}{value!r}</v></c>"))
+            elif value is not None:
+                rows.setdefault(i, []).append((column, self._cell(value, head[:-4], i, column)))
+            elif index:  # a blank cell keeps its format
+                rows.setdefault(i, []).append((column, f"{head[:-4]}/>"))
+        if values:
+            self.max_row = max(self.max_row, row + len(values) - 1)
+            self.max_column = max(self.max_column, column)
+
+    def _cell(self, value: Any, style: str, row: int, column: int) -> str:
+        """The text of one ``<c>`` element after ``<c`` and its reference."""
+        if isinstance(value, Formula):
+            return f"{style}><f>{_escape(value[1:] if value.startswith('=') else value)}</f></c>"
+        if isinstance(value, str):
+            text = _escape(value)
+            space = ' xml:space="preserve"' if text != text.strip() else ""
+            return f'{style} t="inlineStr"><is><t{space}>{text}</t></is></c>'
+        if isinstance(value, bool):
+            return f'{style} t="b"><v>{int(value)}</v></c>'
+        if isinstance(value, int) or hasattr(value, "__index__"):
+            return f"{style}><v>{int(value)}</v></c>"
+        if isinstance(value, float) or hasattr(value, "__float__"):
+            number = float(value)
+            if not math.isfinite(number):
+                raise ValueError(
+                    f"sheet {self.name!r} cell {column_letter(column)}{row}: {number!r} is not a number a "
+                    "workbook can hold; nothing was written"
+                )
+            return f"{style}><v>{number!r}</v></c>"
+        raise TypeError(f"sheet {self.name!r} cell {column_letter(column)}{row}: cannot write a {type(value).__name__}")
+
+    def dimension(self) -> str:
+        """The used range, ``A1:K2009`` (``A1`` for an empty sheet)."""
+        if not self.max_row:
+            return "A1"
+        return f"A1:{column_letter(max(self.max_column, 1))}{self.max_row}"
+
+    def xml(self) -> Iterator[str]:
+        """The ``<sheetData>`` element, in pieces of a few thousand rows."""
+        yield "<sheetData>"
+        parts: list[str] = []
+        for number in sorted(self._rows):
+            cells = self._rows[number]
+            if not cells:
+                continue
+            cells.sort(key=lambda cell: cell[0])
+            previous = 0
+            parts.append(f'<row r="{number}">')
+            for column, text in cells:
+                if column == previous:
+                    raise ValueError(f"sheet {self.name!r} cell {column_letter(column)}{number} is written twice")
+                parts.append("<c" + text if column == previous + 1 else f'<c r="{column_letter(column)}{number}"{text}')
+                previous = column
+            parts.append("</row>")
+            if len(parts) > 8 * _CHUNK_ROWS:
+                yield "".join(parts)
+                parts = []
+        parts.append("</sheetData>")
+        yield "".join(parts)
