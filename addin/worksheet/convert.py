@@ -23,8 +23,9 @@ from .registry import Quantity
 
 __all__ = [
     "Cell",
-    "choice",
     "cached",
+    "choice",
+    "clear_read",
     "label",
     "method",
     "method_key",
