@@ -1,29 +1,35 @@
-"""Benchmark: recalculation storms of 500 STEP_PEAK cells over one 20,000-sample record.
+"""Benchmark: STEP_PEAK calls over one 20,000-sample record, for each shape a range arrives in.
 
-Each cell hands Python the whole record range as xlwings passes a range
-argument of ours (``ndim=2``: a fresh list of one-cell rows per call; a text
-heading, 20,000 samples, 500 blank cells below).
+Shapes of the record range (a text heading, 20,000 samples [g], 500 blank
+cells below, as a generous range is selected):
 
-Sheets:
+* list:  a fresh list of one-cell row lists per call, each float a fresh
+         object (what xlwings passes for ``ndim=2``)
+* tuple: a fresh tuple of one-cell row tuples, fresh floats (what the
+         LibreOffice Calc edge passes)
+* numpy: a fresh float64 array of the 20,000 samples (what xlwings builds
+         when the argument is converted with ``np.array``; a range with a
+         heading or blanks would give an object array instead)
 
-* "5 quantities": 100 oscillators (periods 0.05-5 s, 5 % damping) x SD, SV,
-  SA, PSV, PSA
-* "500 periods": 500 oscillators (periods 0.05-5 s), PSA
+Figures, each the best of several runs measured in this run:
 
-Figures:
+1. The record key alone: the previous key (``marshal`` version 2 of the
+   cells and SHA-256, every call) beside the current `cache.cell_digest`
+   on a repeat (the cells' exact form compared in full with the kept one),
+   and the floor of each shape: for lists and tuples the marshal pass
+   alone (the exact form), a bare ``==`` with kept cells (C speed but not
+   exact: ``True == 1.0``, ``0.0 == -0.0``) and ``sum(map(len, cells))``
+   (the cheapest pass that visits every row); for arrays ``array_equal``.
+2. One cached call (the same STEP_PEAK again): current, and the previous
+   per-call path patched in (previous key, every option cell read again)
+   in the same run; the ratio; the 50 us target.
+3. Two sheets of 500 STEP_PEAK calls ("5 quantities": 100 periods x SD,
+   SV, SA, PSV, PSA; "500 periods": PSA): cold (every cache empty, the
+   first recalculation ever), edited (one sample changed, the periods are
+   remembered), warm (unchanged), and the previous path's edited figure;
+   the 0.1 s target.
 
-* cold:     caches emptied once, then the 500 calls (first recalculation ever)
-* edited:   one sample of the record changed, the 500 calls again (the
-            recalculation after an edit: the periods are remembered)
-* warm:     the same 500 calls again (recalculation of an unchanged sheet)
-* uncached: caches emptied before every call
-* former:   the former code path, inlined here: digest by marshal version 4
-            plus SHA-256, one `linear_response` per oscillator
-
-and the record digest alone (former: marshal version 4, current: version 2),
-beside the cheapest C-level pass over the same cells (``sum(map(len, ...))``),
-which no exact key can beat. Figures are the best of several runs, measured
-in this run. Run with ``python benchmarks/bench_functions.py``.
+Run with ``python benchmarks/bench_functions.py``.
 """
 
 from __future__ import annotations
@@ -31,24 +37,23 @@ from __future__ import annotations
 import hashlib
 import marshal
 import platform
-import time
-import warnings
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from typing import Any
 
 import numpy as np
+from _timing import best_of
 
 from groundstep.addin.functions import STEP_PEAK
 from groundstep.addin.worksheet import cache as _cache
-from groundstep.addin.worksheet import cells as _cells
-from groundstep.core import Record, __version__, linear_response
+from groundstep.addin.worksheet import convert as _convert
+from groundstep.core import __version__
 
 SAMPLES = 20_000
 DT = 0.005  # s
-REPEATS = 5
+REPEATS = 3
 TARGET_WARM = 50e-6  # s per cached call
 TARGET_COLD = 0.1  # s for a cold sheet of 500 cells
-
-_ATTRIBUTE = {"SD": "peak_displacement", "SV": "peak_velocity", "SA": "peak_total_acceleration",
-              "PSV": "pseudo_velocity", "PSA": "pseudo_acceleration"}  # fmt: skip
 
 
 def invented_record(seed: int = 2024) -> list[list[object]]:
@@ -60,6 +65,25 @@ def invented_record(seed: int = 2024) -> list[list[object]]:
     return [["Accel [g]"]] + [[float(a)] for a in accel] + [[None]] * 500
 
 
+def edited(cells: list[list[object]]) -> list[list[object]]:
+    """The same range with one sample changed by 1e-6 g."""
+    changed = [list(row) for row in cells]
+    changed[1 + SAMPLES // 2] = [float(changed[1 + SAMPLES // 2][0]) + 1e-6]  # type: ignore[arg-type]
+    return changed
+
+
+def _fresh_float(value: object) -> object:
+    return value * 1.0 if type(value) is float else value  # a new float object of the same bits
+
+
+#: shape -> a function making a fresh copy of the range in that shape, as a spreadsheet hands it over
+SHAPES: dict[str, Callable[[list[list[object]]], Any]] = {
+    "list": lambda cells: [[_fresh_float(v) for v in row] for row in cells],
+    "tuple": lambda cells: tuple(tuple(_fresh_float(v) for v in row) for row in cells),
+    "numpy": lambda cells: np.array([row[0] for row in cells[1 : 1 + SAMPLES]], dtype=np.float64),
+}
+
+
 def sheets() -> dict[str, list[tuple[float, str]]]:
     few = np.geomspace(0.05, 5.0, 100)
     many = np.geomspace(0.05, 5.0, 500)
@@ -69,96 +93,115 @@ def sheets() -> dict[str, list[tuple[float, str]]]:
     }
 
 
-def fresh(cells: list[list[object]]) -> list[list[object]]:
-    """A new list of new rows with the same values: what xlwings builds for every call."""
-    return [list(row) for row in cells]
+def previous_key(cells: Any) -> bytes:
+    """The record key before this change: marshal version 2 of the cells and SHA-256, on every call."""
+    if isinstance(cells, np.ndarray):
+        return _cache.digest(cells)
+    return hashlib.sha256(b"m" + marshal.dumps(cells, 2)).digest()
 
 
-def run(cells, cases, clear_each: bool = False) -> float:
-    copies = [fresh(cells) for _ in range(8)]  # rotate a few fresh lists: no identity shared across calls
+@contextmanager
+def previous_path() -> Iterator[None]:
+    """Patch in the previous per-call work: the key hashed every call, every option cell read again."""
+    saved = _cache.cell_digest, _convert._remembered
+    _cache.cell_digest = previous_key
+    _convert._remembered = lambda key, read: read()
+    try:
+        yield
+    finally:
+        _cache.cell_digest, _convert._remembered = saved
+
+
+def run(copies: list[Any], cases: list[tuple[float, str]]) -> float:
+    """Wall time [s] of the calls of one sheet, rotating a few fresh copies of the range."""
+    import time
+
     start = time.perf_counter()
     for index, (period, quantity) in enumerate(cases):
-        if clear_each:
-            _cache.clear_all()
-        value = STEP_PEAK(copies[index % 8], DT, "g", period, 0.05, quantity)
+        value = STEP_PEAK(copies[index % len(copies)], DT, "g", period, 0.05, quantity)
         if isinstance(value, str):
             raise RuntimeError(value)
     return time.perf_counter() - start
 
 
-def former_digest(cells) -> bytes:
-    """The record digest before this change: marshal (newest version) and SHA-256."""
-    return hashlib.sha256(marshal.dumps(cells)).digest()
+def key_figures(shape: str, cells: list[list[object]]) -> None:
+    make = SHAPES[shape]
+    kept = make(cells)
+    _cache.clear_all()
+    _cache.cell_digest(kept)  # the first sight keeps the exact form
+    copies = [make(cells) for _ in range(8)]
+    figures: dict[str, Callable[[Any], object]] = {
+        "previous (hash every call)": previous_key,
+        "current (compare with kept)": _cache.cell_digest,
+    }
+    if shape == "numpy":
+        figures["floor: array_equal"] = lambda c: np.array_equal(c.view(np.uint64), kept.view(np.uint64))
+    else:
+        figures["floor: marshal pass alone"] = lambda c: marshal.dumps(c, 2)
+        figures["not exact: bare == with kept"] = lambda c: c == kept
+        figures["floor: sum(map(len, cells))"] = lambda c: sum(map(len, c))
+    low = {label: min(best_of(lambda call=call, copy=copy: call(copy), 1) for _ in range(6) for copy in copies[:4])
+           for label, call in figures.items()}  # fmt: skip
+    assert _cache.cell_digest(copies[0]) == _cache.digest(copies[0])  # the same key, found without hashing
+    base = low["previous (hash every call)"]
+    print(f"  record key of the {shape} range:")
+    for label, seconds in low.items():
+        print(f"    {label:30s} {1e6 * seconds:7.1f} us   previous / this {base / seconds:5.2f}x")
 
 
-def former_run(cells, cases, records: dict, results: dict) -> float:
-    """The former STEP_PEAK path: digest every call, one linear_response per oscillator."""
-    copies = [fresh(cells) for _ in range(8)]
-    start = time.perf_counter()
-    for index, (period, quantity) in enumerate(cases):
-        cells = copies[index % 8]
-        key = former_digest(cells)
-        if key not in records:
-            records[key] = Record(_cells.numbers(cells, "the acceleration range", min_count=2), DT, "g")
-        if (key, period) not in results:
-            with warnings.catch_warnings():
-                warnings.simplefilter("ignore")
-                response = linear_response(records[key], period, 0.05)
-            results[(key, period)] = {a: getattr(response, a) for a in _ATTRIBUTE.values()}
-        _ = results[(key, period)][_ATTRIBUTE[quantity]] / 9.80665
-    return time.perf_counter() - start
+def cached_call(shape: str, cells: list[list[object]]) -> tuple[float, float]:
+    make = SHAPES[shape]
+    copies = [make(cells) for _ in range(8)]
+    cases = [(1.0, "PSA")] * 200
+    results = {}
+    for label, context in (("current", None), ("previous", previous_path)):
+        _cache.clear_all()
+        _convert.clear_read()
+        run(copies, cases[:1])
+        if context is None:
+            results[label] = min(run(copies, cases) for _ in range(REPEATS)) / len(cases)
+        else:
+            with context():
+                results[label] = min(run(copies, cases) for _ in range(REPEATS)) / len(cases)
+    return results["current"], results["previous"]
 
 
+def sheet_figures(shape: str, cells: list[list[object]], changed: list[list[object]]) -> None:
+    make = SHAPES[shape]
+    first, second = [make(cells) for _ in range(4)], [make(changed) for _ in range(4)]
+    for name, cases in sheets().items():
+        figures: dict[str, list[float]] = {"cold": [], "edited": [], "warm": [], "previous cold": [], "previous edited": []}
+        for _ in range(REPEATS):
+            _cache.clear_all()
+            figures["cold"].append(run(first, cases))
+            figures["edited"].append(run(second, cases))
+            figures["warm"].append(run(second, cases))
+            _cache.clear_all()
+            with previous_path():
+                figures["previous cold"].append(run(first, cases))
+                figures["previous edited"].append(run(second, cases))
+        low = {label: min(values) for label, values in figures.items()}
+        verdict = "met" if low["cold"] <= TARGET_COLD else "missed"
+        print(f"  sheet '{name}' ({len(cases)} calls, {shape}): cold {low['cold']:.3f} s ({verdict}, target "
+              f"{TARGET_COLD} s), edited {low['edited']:.3f} s, warm {low['warm']:.3f} s")
+        print(f"    previous path: cold {low['previous cold']:.3f} s = {low['previous cold'] / low['cold']:.1f}x, "
+              f"edited {low['previous edited']:.3f} s = {low['previous edited'] / low['edited']:.1f}x")
 
 
 def main() -> None:
-    cells, edited = invented_record(), invented_record()
-    edited[1 + SAMPLES // 2] = [float(edited[1 + SAMPLES // 2][0]) + 1e-6]
-    print(f"groundstep {__version__}, Python {platform.python_version()}, {platform.machine()}")
+    cells = invented_record()
+    changed = edited(cells)
+    print(f"groundstep {__version__}, Python {platform.python_version()}, {platform.machine()}; best of {REPEATS} "
+          "runs unless said")  # fmt: skip
     STEP_PEAK(cells, DT, "g", 1.0, 0.05, "SD")  # load the compiled kernels before timing
-    linear_response(Record([0.0, 1.0, 0.0], DT, "m/s2"), 1.0)
-
-    figures = {"former": [], "current": [], "floor": []}
-    for _ in range(40):  # alternated, each on a fresh copy: the float objects shared, as in xlwings' conversion
-        for label, call in (("former", former_digest), ("current", _cache.digest), ("floor", lambda c: sum(map(len, c)))):
-            copy = fresh(cells)
-            start = time.perf_counter()
-            call(copy)
-            figures[label].append(time.perf_counter() - start)
-    low = {label: min(values) for label, values in figures.items()}
-    print(f"record digest of {len(cells)} cells (a fresh list per call), best of 40 alternated:")
-    print(f"  former (marshal v4 + SHA-256) {1e6 * low['former']:6.0f} us   current (marshal v2 + SHA-256) "
-          f"{1e6 * low['current']:6.0f} us   former / current {low['former'] / low['current']:.2f}x")
-    print(f"  cheapest C-level pass over the cells, sum(map(len, cells)): {1e6 * low['floor']:6.0f} us "
-          f"({low['floor'] / TARGET_WARM:.1f}x the {1e6 * TARGET_WARM:.0f} us target by itself)")
-
-    for name, cases in sheets().items():
-        n = len(cases)
-        figures: dict[str, list[float]] = {"cold": [], "edited": [], "warm": [], "former cold": [], "former warm": []}
-        for _ in range(REPEATS):
-            _cache.clear_all()
-            figures["cold"].append(run(cells, cases))
-            figures["edited"].append(run(edited, cases))
-            figures["warm"].append(run(edited, cases))
-            records: dict = {}
-            results: dict = {}
-            figures["former cold"].append(former_run(cells, cases, records, results))
-            figures["former warm"].append(former_run(cells, cases, records, results))
-        uncached = min(run(cells, cases[:50], clear_each=True) for _ in range(3)) * n / 50
-        low = {label: min(values) for label, values in figures.items()}
-        print(f"sheet '{name}': {n} STEP_PEAK calls, best of {REPEATS} runs")
-        for label, seconds in low.items():
-            print(f"  {label:12s} {seconds:8.4f} s in all, {1e6 * seconds / n:8.1f} us per call")
-        print(f"  uncached     {uncached:8.4f} s in all (50 calls scaled to {n})")
-        compute = {label: low[label] - low[warm] for label, warm in
-                   (("cold", "warm"), ("edited", "warm"), ("former cold", "former warm"))}  # fmt: skip
-        print(f"  computing alone (minus the warm figure): cold {compute['cold']:.3f} s, edited {compute['edited']:.3f} s, "
-              f"former {compute['former cold']:.3f} s")
-        print(f"  former cold / cold {low['former cold'] / low['cold']:.1f}x, former cold / edited "
-              f"{low['former cold'] / low['edited']:.1f}x, former warm / warm {low['former warm'] / low['warm']:.2f}x")
-        print(f"  targets: cold {low['cold']:.3f} s (<= {TARGET_COLD} s: {'met' if low['cold'] <= TARGET_COLD else 'missed'}), "
-              f"warm {1e6 * low['warm'] / n:.0f} us per call (<= {1e6 * TARGET_WARM:.0f} us: "
-              f"{'met' if low['warm'] / n <= TARGET_WARM else 'missed'})")
+    for shape in SHAPES:
+        print(f"{shape} of {SAMPLES:,} samples:")
+        key_figures(shape, cells)
+        current, previous = cached_call(shape, cells)
+        verdict = "met" if current <= TARGET_WARM else "missed"
+        print(f"  cached STEP_PEAK call: {1e6 * current:.1f} us ({verdict}, target {1e6 * TARGET_WARM:.0f} us; "
+              f"{current / TARGET_WARM:.1f}x it), previous path {1e6 * previous:.1f} us = {previous / current:.1f}x")
+        sheet_figures(shape, cells, changed)
 
 
 if __name__ == "__main__":

@@ -570,3 +570,42 @@ def test_numpy_scalar_cells_with_equal_bytes_give_different_records():
     other = STEP_PEAK(as_int, DT, "g", 0.5, 0.05, "SD")
     assert value == STEP_PEAK(CELLS, DT, "g", 0.5, 0.05, "SD")  # same numbers as the plain float cells
     assert other != value  # five samples read as huge integers: another record, not the cached one
+
+
+@pytest.mark.parametrize(
+    "shape",
+    [lambda cells: cells, lambda cells: tuple(tuple(row) for row in cells), lambda cells: np.asarray(SAMPLES)],
+    ids=["list of lists", "tuple of tuples", "float64 array"],
+)
+def test_step_peak_reads_each_shape_a_range_arrives_in_and_its_repeats(shape):
+    """Lists of lists (xlwings), tuples of tuples (Calc) and float arrays give the core's value, first and repeated."""
+    reference = elastic_spectrum(RECORD, [0.7], 0.05)
+    for _ in range(3):  # the first call parses and keeps the cells; the others find them
+        # the same core call on the same samples; only the conversion to g (9.80665 m/s², CGPM 1901) differs: RTOL
+        np.testing.assert_allclose(STEP_PEAK(shape(CELLS), DT, "g", 0.7, 0.05, "PSA"), reference.psa[0, 0] / 9.80665,
+                                   rtol=RTOL)  # fmt: skip
+    assert _cache.CELLS.hits >= 2
+
+
+def test_a_repeated_range_with_one_sample_changed_inside_is_read_again():
+    """A sample changed away from the fingerprinted cells gives the new record's value, never the kept one."""
+    changed = [list(row) for row in CELLS]
+    changed[2 + 150] = [float(SAMPLES[150]) + 0.01]  # a sample before the peak, past the two header rows
+    samples = SAMPLES.copy()
+    samples[150] += 0.01
+    before = STEP_PEAK(CELLS, DT, "g", 0.3, 0.05, "SD")
+    after = STEP_PEAK(changed, DT, "g", 0.3, 0.05, "SD")
+    reference = elastic_spectrum(Record(samples, DT, "g"), [0.3], 0.05)  # the core on the changed samples
+    # SD in m for a record in g: the core's SI value itself, equal to the last bit (same call, no conversion)
+    assert after == float(reference.sd[0, 0])
+    assert after != before
+
+
+def test_bad_option_cells_give_the_same_message_every_time():
+    """Option cells already read are remembered only when they were read without error: a bad one fails each call."""
+    first = STEP_PEAK(CELLS, DT, "furlongs", 0.5)
+    assert first == STEP_PEAK(CELLS, DT, "furlongs", 0.5) and first.startswith(ERROR_PREFIX)
+    assert "the record unit 'furlongs' is not a known unit" in first
+    wrong = STEP_PEAK(CELLS, DT, "g", 0.5, 0.05, "PSX")
+    assert wrong == STEP_PEAK(CELLS, DT, "g", 0.5, 0.05, "PSX") and "is not one of" in wrong
+    assert STEP_PEAK(CELLS, DT, [["g"]], 0.5) == STEP_PEAK(CELLS, DT, "g", 0.5)  # a one-cell range reads as its cell

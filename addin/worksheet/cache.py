@@ -13,6 +13,10 @@ by a lock; a value is computed outside the lock, so two threads that miss on
 the same key at the same moment may both compute it (same inputs, same
 result), and neither blocks the other.
 
+`CELLS` finds cells seen before without hashing them again: a cheap
+fingerprint picks the candidates and a full comparison of the cells
+confirms (`CellIndex`).
+
 `ASKED` remembers which periods ``STEP_PEAK`` cells asked for, per damping
 and method, so the first cell over a new (edited) record computes all of
 them in one spectrum pass (see ``convert.peaks``).
@@ -40,9 +44,12 @@ RESULT_CAPACITY = 4096
 HISTORY_CAPACITY = 4
 #: Most bytes each cache holds (numpy data and Python objects, estimated by `size_of`);
 #: together at most 160 MiB however large the records.
-RECORD_BYTES = 64 * 2**20
+RECORD_BYTES = 48 * 2**20
 RESULT_BYTES = 32 * 2**20
 HISTORY_BYTES = 64 * 2**20
+#: Cells kept by `CELLS` for the exact comparison (marshal bytes or an array copy).
+CELL_CAPACITY = 2 * RECORD_CAPACITY
+CELL_BYTES = 16 * 2**20
 
 
 class LRUCache:
@@ -200,6 +207,152 @@ def is_plain(cells: Any) -> bool:
     return all(type(row) in _PLAIN_SCALARS or is_plain(row) for row in cells)
 
 
+class CellIndex:
+    """Cells seen before -> their `digest`, found by a fingerprint and confirmed by a full comparison.
+
+    Hashing 20,000 cells costs more than comparing them with cells kept
+    from an earlier call, so a repeated range is looked up in two steps:
+
+    1. a fingerprint of a few bytes (the length of the cells' exact form and
+       a few slices of it) selects the entries that may match;
+    2. the exact form of the new cells is compared in full, at C speed,
+       with the form kept for each candidate; only an equal form is a hit.
+
+    The exact form is the one `digest` hashes: ``marshal`` version 2 bytes
+    for lists and tuples (exact for plain cells only, so `remember` is
+    called for plain cells only) and, for a numpy array that does not hold
+    Python objects, its dtype, shape and bytes (compared as unsigned
+    integers, so -0.0 and 0.0, and NaNs of different bits, differ). A hit
+    is therefore exact: never a stale one. Arrays of Python objects and
+    cells marshal refuses have no exact form here (`form` gives None).
+
+    Parameters
+    ----------
+    capacity : int
+        Most entries kept; the least recently used one is dropped beyond it.
+    max_bytes : int
+        Most bytes of kept forms.
+    """
+
+    def __init__(self, capacity: int = CELL_CAPACITY, max_bytes: int = CELL_BYTES) -> None:
+        self.capacity = int(capacity)
+        self.max_bytes = int(max_bytes)
+        # fingerprint -> [(form, digest), ...]; the order is the use order of fingerprints
+        self._entries: OrderedDict[Hashable, list[tuple[Any, bytes]]] = OrderedDict()
+        self._count = 0
+        self._bytes = 0
+        self._lock = threading.Lock()
+        self.hits = 0
+        self.misses = 0
+
+    @property
+    def nbytes(self) -> int:
+        """Bytes of the kept forms; at most `max_bytes`."""
+        with self._lock:
+            return self._bytes
+
+    def __len__(self) -> int:
+        with self._lock:
+            return self._count
+
+    @staticmethod
+    def form(cells: Any) -> tuple[Hashable, Any] | None:
+        """(fingerprint, exact form) of cells, or None when they have no exact form here."""
+        if isinstance(cells, np.ndarray):
+            if cells.dtype == object or cells.size == 0:
+                return None
+            flat = np.ascontiguousarray(cells).reshape(-1)
+            size = flat.dtype.itemsize
+            flat = flat.view(f"u{size}") if size in (1, 2, 4, 8) else flat.view(np.uint8)
+            count = flat.size
+            picks = flat[[0, count // 3, count // 2, (2 * count) // 3, count - 1]].tobytes()
+            return ("a", cells.dtype.str, cells.shape, picks), flat
+        if type(cells) not in (list, tuple):
+            return None
+        try:
+            payload = marshal.dumps(cells, 2)
+        except ValueError:
+            return None
+        n = len(payload)
+        middle = n // 2
+        return ("m", n, payload[:48], payload[middle : middle + 48], payload[-48:]), payload
+
+    def find(self, fingerprint: Hashable, exact: Any) -> bytes | None:
+        """The digest kept for cells of this exact form, or None."""
+        with self._lock:
+            candidates = self._entries.get(fingerprint)
+            if candidates is not None:
+                self._entries.move_to_end(fingerprint)
+                candidates = list(candidates)
+        for kept, digest_ in candidates or ():
+            if _same_form(exact, kept):
+                self.hits += 1
+                return digest_
+        self.misses += 1
+        return None
+
+    def remember(self, fingerprint: Hashable, exact: Any, digest_: bytes) -> None:
+        """Keep the exact form of plain cells (`is_plain`) with their digest."""
+        kept = exact.copy() if isinstance(exact, np.ndarray) else exact  # the caller's array may change later
+        size = kept.nbytes if isinstance(kept, np.ndarray) else len(kept)
+        if size > self.max_bytes:
+            return
+        with self._lock:
+            entries = self._entries.setdefault(fingerprint, [])
+            entries.append((kept, digest_))
+            self._entries.move_to_end(fingerprint)
+            self._count += 1
+            self._bytes += size
+            while self._count > self.capacity or self._bytes > self.max_bytes:
+                oldest = next(iter(self._entries))
+                dropped = self._entries[oldest].pop(0)
+                if not self._entries[oldest]:
+                    del self._entries[oldest]
+                self._count -= 1
+                self._bytes -= dropped[0].nbytes if isinstance(dropped[0], np.ndarray) else len(dropped[0])
+
+    def clear(self) -> None:
+        """Forget every entry and zero the counters."""
+        with self._lock:
+            self._entries.clear()
+            self._count = self._bytes = self.hits = self.misses = 0
+
+
+def _same_form(new: Any, kept: Any) -> bool:
+    """Two exact forms (marshal bytes, or flat unsigned-integer views of arrays) equal in full."""
+    if isinstance(new, np.ndarray):
+        return isinstance(kept, np.ndarray) and new.dtype == kept.dtype and bool(np.array_equal(new, kept))
+    return new == kept
+
+
+CELLS = CellIndex()
+
+
+def cell_digest(cells: Any) -> bytes | None:
+    """`digest` of cells when it is exact for them (`is_plain`), else None; a repeat is found in `CELLS`.
+
+    The result is the same bytes as ``digest(cells)``: only the work
+    differs (a full comparison with kept cells instead of SHA-256).
+    """
+    found = CELLS.form(cells)
+    if found is None:
+        return digest(cells) if is_plain(cells) else None
+    fingerprint, exact = found
+    kept = CELLS.find(fingerprint, exact)
+    if kept is not None:
+        return kept
+    if not is_plain(cells):
+        return None
+    if isinstance(cells, np.ndarray):
+        made = digest(cells)
+    else:
+        hasher = hashlib.sha256(b"m")
+        hasher.update(exact)
+        made = hasher.digest()
+    CELLS.remember(fingerprint, exact, made)
+    return made
+
+
 class PeriodMemory:
     """The periods asked per setting (damping, method), and which records each setting has seen.
 
@@ -257,4 +410,5 @@ def clear_all() -> None:
     """Empty every cache (the benchmark's cold start; tests that count parses)."""
     for cache in (RECORDS, RESULTS, HISTORIES):
         cache.clear()
+    CELLS.clear()
     ASKED.clear()

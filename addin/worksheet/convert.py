@@ -23,8 +23,9 @@ from .registry import Quantity
 
 __all__ = [
     "Cell",
-    "choice",
     "cached",
+    "choice",
+    "clear_read",
     "label",
     "method",
     "method_key",
@@ -42,25 +43,44 @@ Cell = Any  # a value as the spreadsheet passes it: number, text, bool, None or 
 
 
 def record(accel: Cell, dt: Cell, unit: Cell) -> tuple[Record, tuple[Any, ...]]:
-    """The record of the cells (parsed once per distinct cells, time step and unit) and its cache key."""
+    """The record of the cells (parsed once per distinct cells, time step and unit) and its cache key.
+
+    Plain cells are keyed by `cache.cell_digest` (a repeat of cells seen
+    before is found by comparing them in full, not by hashing them again),
+    other cells (numpy scalars, bytes, arrays of objects) by
+    `cache.strict_digest`.
+    """
     step = cells.positive(dt, "the time step", "s")
-    name = cells.unit(unit, "the record unit", ACCELERATION_UNITS)
-
-    def parse(plain_only: bool) -> Record:
-        if plain_only and not cache.is_plain(accel):
-            raise _NotPlain
-        return Record(cells.numbers(accel, "the acceleration range", min_count=2), step, name)
-
-    key: tuple[Any, ...] = ("record", cache.digest(accel), step, name)
-    try:  # stored under the fast digest only when it is exact for these cells
-        return cache.RECORDS.get_or_compute(key, lambda: parse(True)), key
-    except _NotPlain:
-        key = ("record", cache.strict_digest(accel), step, name)
-        return cache.RECORDS.get_or_compute(key, lambda: parse(False)), key
+    name = _record_unit(unit)
+    fast = cache.cell_digest(accel)
+    key: tuple[Any, ...] = ("record", fast if fast is not None else cache.strict_digest(accel), step, name)
+    parsed = cache.RECORDS.get_or_compute(key, lambda: Record(cells.numbers(accel, "the acceleration range", min_count=2), step, name))
+    return parsed, key
 
 
-class _NotPlain(Exception):
-    """Cells whose fast digest is not exact (numpy scalars, bytes): keyed by the strict digest instead."""
+#: Option cells already read: (which option, the text or None as typed) -> the value it gave. Text
+#: cells only (type str exactly, or blank), so a hit is the same reading; failures are not kept.
+_READ: dict[tuple[Any, ...], Any] = {}
+_READ_CAPACITY = 1024
+
+
+def _remembered(key: tuple[Any, ...], read: Callable[[], Any]) -> Any:
+    """`read()` once per option key; keys holding anything but text or None are read every time."""
+    if not all(part is None or type(part) is str for part in key[1:]):
+        return read()
+    try:
+        return _READ[key]
+    except KeyError:
+        pass
+    value = read()
+    if len(_READ) >= _READ_CAPACITY:
+        _READ.clear()
+    _READ[key] = value
+    return value
+
+
+def _record_unit(unit: Cell) -> str:
+    return _remembered(("record unit", unit), lambda: cells.unit(unit, "the record unit", ACCELERATION_UNITS))
 
 
 #: Rows of an ElasticSpectrum -> the attributes of a linear response's peaks that STEP_PEAK reads.
@@ -104,6 +124,11 @@ def _constant(value: dict[str, Any]) -> Callable[[], dict[str, Any]]:
 
 def choice(value: Cell, quantities: dict[str, Quantity], what: str = "the quantity") -> Quantity:
     """The quantity named in a cell (case, ``_`` and ``-`` ignored); the first entry when blank."""
+    table, chosen = _remembered((("choice", id(quantities), what), value), lambda: (quantities, _choose(value, quantities, what)))
+    return chosen if table is quantities else _choose(value, quantities, what)  # an id reused by another table
+
+
+def _choose(value: Cell, quantities: dict[str, Quantity], what: str) -> Quantity:
     spelled = _plain(cells.text(value, what, next(iter(quantities))))
     for name, quantity in quantities.items():
         if _plain(name) == spelled:
@@ -139,6 +164,11 @@ def strength(yield_coefficient: Cell, reduction_factor: Cell) -> dict[str, float
 
 def units(record_unit: str, accel_unit_out: Cell, length_unit_out: Cell) -> OutputUnits:
     """Output units: the cells' choices, else the record's unit and its matching length unit."""
+    return _remembered(("units", record_unit, accel_unit_out, length_unit_out),
+                       lambda: _units(record_unit, accel_unit_out, length_unit_out))  # fmt: skip
+
+
+def _units(record_unit: str, accel_unit_out: Cell, length_unit_out: Cell) -> OutputUnits:
     accel = cells.unit(accel_unit_out, "the output acceleration unit", ACCELERATION_UNITS, record_unit)
     spelled = cells.text(length_unit_out, "the output length unit", None)
     if spelled is None:
@@ -200,6 +230,11 @@ def cached(store: cache.LRUCache, key: Hashable, compute: Callable[[], Any]) -> 
 def summary(result: Any, quantities: dict[str, Quantity]) -> dict[str, Any]:
     """The scalar results a function may return, kept instead of the (large) result object."""
     return {q.attribute: getattr(result, q.attribute) for q in quantities.values()}
+
+
+def clear_read() -> None:
+    """Forget the option cells already read (tests that count readings)."""
+    _READ.clear()
 
 
 def _plain(name: str) -> str:
