@@ -139,13 +139,16 @@ def office(tmp_path_factory):
     from groundstep.addin.calc.office import Office
 
     folder = tmp_path_factory.mktemp("calc")
-    oxt = extension.build_extension(folder / "groundstep.oxt", site.getsitepackages())
     with Office(folder / "profile") as running:
+        # an extension with a Python macro installs only where LibreOffice has its Python script provider
+        macro = _SCRIPT_PROVIDER in running.context.ServiceManager.getAvailableServiceNames()
+        oxt = extension.build_extension(folder / "groundstep.oxt", site.getsitepackages(), macro=macro)
         running.add_extension(oxt)
         yield running
 
 
 _RECORD = synthetic_record(4.0, 0.01, pga=0.25, unit="g", seed=5)
+_SCRIPT_PROVIDER = "com.sun.star.script.provider.ScriptProviderForPython"
 
 
 @pytest.fixture(scope="module")
@@ -407,8 +410,12 @@ def test_cli_fill_stores_a_copy_and_leaves_the_input(tmp_path):
 
 
 def test_calc_template_clipped_record_gives_the_whole_range_answer(office, tmp_path):
-    """A stray text cell below the record, after blank rows: the clipped STEP_ cell gives the whole range's error."""
-    from groundstep.addin.calc.template import USED_ROWS_CELL
+    """A stray text cell below the record, after blank rows: the clipped STEP_ cell gives the whole range's error.
+
+    The template hands the record over as one row, so the message names the cell as a column
+    (calc.template.RECORD_POSITION, which the Record sheet's note states).
+    """
+    from groundstep.addin.calc.template import RECORD_POSITION, USED_ROWS_CELL
 
     document = office.open(_filled_template(tmp_path))
     record_sheet = document.Sheets.getByName("Record")
@@ -421,6 +428,151 @@ def test_calc_template_clipped_record_gives_the_whole_range_answer(office, tmp_p
     peaks = document.Sheets.getByName("Peaks")
     period, damping = peaks.getCellByPosition(0, 6).getValue(), peaks.getCellByPosition(1, 6).getValue()
     expected = STEP_PEAK(record, 0.01, "g", period, damping, "SD", "average")
-    assert isinstance(expected, str) and expected.startswith(ERROR_PREFIX)
-    assert peaks.getCellByPosition(2, 6).getString() == expected
+    assert expected == f"{ERROR_PREFIX}row {_RECORD.n + 2} of the acceleration range is blank"
+    assert peaks.getCellByPosition(2, 6).getString() == expected.replace("row", "column", 1)
+    assert record_sheet.getCellRangeByName("B1").getString().endswith(RECORD_POSITION)
     document.close(True)
+
+
+def test_calc_template_passes_an_error_in_the_record_on(office, tmp_path):
+    """An error value in a record cell (=NA(), =1/0) reaches the template's STEP_ cells as that error."""
+    document = office.open(_filled_template(tmp_path))
+    record_sheet = document.Sheets.getByName("Record")
+    peaks = document.Sheets.getByName("Peaks")
+    # LibreOffice's error codes (formula/errorcodes.hxx): 32767 is #N/A, 532 is #DIV/0!
+    for formula, code in (("=NA()", 32767), ("=1/0", 532)):
+        record_sheet.getCellRangeByName("A300").setFormula(formula)
+        document.calculateAll()
+        for column in (2, 9):  # a STEP_PEAK and a STEP_DUCTILITY cell
+            assert peaks.getCellByPosition(column, 6).getError() == code, (formula, column)
+    record_sheet.getCellRangeByName("A300").setValue(0.01)
+    document.calculateAll()
+    assert peaks.getCellByPosition(2, 6).getError() == 0
+    document.close(True)
+
+
+# ----------------------------------------------------------------------------- the fill_results macro
+
+
+def test_extension_ships_the_fill_macro():
+    """The manifest names the macro folder as a framework script; the macro file exports fill_results."""
+    from groundstep.addin.calc import macro
+
+    root = ET.fromstring(extension.manifest_xml())
+    entries = {e.get("{http://openoffice.org/2001/manifest}full-path"): e.get("{http://openoffice.org/2001/manifest}media-type")
+               for e in root}  # fmt: skip
+    assert entries[f"{macro.MACRO_FOLDER}/"] == "application/vnd.sun.star.framework-script"
+    namespace: dict = {}
+    exec(compile(macro.macro_source(["/nowhere"]), macro.MACRO_FILE, "exec"), namespace)  # defines, runs nothing
+    assert [f.__name__ for f in namespace["g_exportedScripts"]] == [macro.MACRO_NAME]
+    assert namespace["SITE_FOLDERS"] == ["/nowhere"]
+    # the scripting framework's URI syntax: package|folder|file$function (LibreOffice's pythonscript.py)
+    assert macro.script_uri() == (
+        "vnd.sun.star.script:groundstep.oxt|python|groundstep_fill.py$fill_results"
+        "?language=Python&location=user:uno_packages"
+    )
+
+
+class _ScriptContext:
+    """What the script provider hands a macro as XSCRIPTCONTEXT: the document and the desktop."""
+
+    def __init__(self, document, desktop):
+        self.document, self.desktop, self.opened = document, desktop, []
+
+    def getDocument(self):  # noqa: N802 - the UNO method name
+        return self.document
+
+    def getDesktop(self):  # noqa: N802 - the UNO method name
+        return _RecordingDesktop(self.desktop, self.opened)
+
+
+class _RecordingDesktop:
+    def __init__(self, desktop, opened):
+        self.desktop, self.opened = desktop, opened
+
+    def loadComponentFromURL(self, *args):  # noqa: N802 - the UNO method name
+        from groundstep.addin.calc.office import property_values
+
+        url, frame, flags, _ = args
+        component = self.desktop.loadComponentFromURL(url, frame, flags, property_values(Hidden=True))
+        self.opened.append(component)
+        return component
+
+
+def _run_macro(document, desktop):
+    """The shipped macro file run as the script provider runs it: its own module, XSCRIPTCONTEXT injected."""
+    from groundstep.addin.calc import macro
+
+    context = _ScriptContext(document, desktop)
+    namespace = {"XSCRIPTCONTEXT": context}
+    exec(compile(macro.macro_source(site.getsitepackages()), macro.MACRO_FILE, "exec"), namespace)
+    return namespace[macro.MACRO_NAME](), context.opened
+
+
+def test_fill_macro_fills_a_new_document_that_verifies(office, tmp_path):
+    """fill_results on the open filled template: a new document with the result sheets; verify passes."""
+    from groundstep.addin.result.verify import verify_workbook
+
+    document = office.open(_filled_template(tmp_path))
+    message, opened = _run_macro(document, office.desktop)
+    assert len(opened) == 1 and message == f"filled {opened[0].Sheets.getCount()} result sheets into a new document"
+    assert not document.Sheets.hasByName("Verification")  # the template itself is left as it was
+    office.save(opened[0], tmp_path / "result.xlsx", "Calc Office Open XML")
+    opened[0].close(True)
+    document.close(True)
+    checks = verify_workbook(tmp_path / "result.xlsx")
+    assert all(check.ok for check in checks), [c.line() for c in checks if not c.ok]
+    assert checks[-1].message.endswith("'pass'")
+
+
+def test_fill_macro_names_a_bad_cell_and_leaves_no_document(office, tmp_path):
+    """A blank time-step cell: the macro returns the reader's message and closes the new document."""
+    from groundstep.addin.calc.macro import REFUSAL
+
+    document = office.open(_filled_template(tmp_path))
+    document.Sheets.getByName("Input").getCellRangeByName("B15").setString("")
+    before = _component_count(office.desktop)
+    message, opened = _run_macro(document, office.desktop)
+    assert message.startswith(REFUSAL) and "time-step cell" in message, message
+    assert len(opened) == 1 and _component_count(office.desktop) == before  # opened, then closed again
+    document.close(True)
+
+
+def test_fill_macro_runs_through_the_script_provider(office, tmp_path):
+    """The installed extension's macro, invoked by its script URI from the document's script provider."""
+    from groundstep.addin.calc.macro import script_uri
+
+    if _SCRIPT_PROVIDER not in office.context.ServiceManager.getAvailableServiceNames():
+        pytest.skip("LibreOffice's Python script provider is not installed (Debian: libreoffice-script-provider-python)")
+    document = office.open(_filled_template(tmp_path))
+    before = _component_count(office.desktop)
+    script = document.getScriptProvider().getScript(script_uri())
+    result, _, _ = script.invoke((), (), ())
+    assert result.startswith("filled ") and result.endswith(" result sheets into a new document"), result
+    assert _component_count(office.desktop) == before + 1
+    document.close(True)
+
+
+def _component_count(desktop) -> int:
+    components = desktop.getComponents().createEnumeration()
+    count = 0
+    while components.hasMoreElements():
+        components.nextElement()
+        count += 1
+    return count
+
+
+def test_install_into_a_profile_says_whether_the_macro_came_along(tmp_path):
+    """install --profile: the extension is installed; without LibreOffice's script provider, minus the macro, said so."""
+    _soffice()
+    from groundstep.addin.calc import install
+    from groundstep.addin.calc.office import Office
+
+    said = install.install(profile=tmp_path / "profile")
+    with Office(tmp_path / "profile") as running:
+        assert extension.EXTENSION_ID in running.extensions()
+        provider = _SCRIPT_PROVIDER in running.context.ServiceManager.getAvailableServiceNames()
+    assert said.startswith(f"installed {extension.EXTENSION_ID} into the profile")
+    assert ("without the fill_results macro" in said) is not provider, said
+    if not provider:
+        assert "libreoffice-script-provider-python" in said

@@ -14,6 +14,8 @@
   ``component.py``;
 * ``CalcAddIns.xcu``: display names (``STEP_PEAK``), descriptions and
   argument help of every function, for Calc's function wizard;
+* ``python/groundstep_fill.py``: the ``fill_results`` macro
+  (``macro.macro_source``), listed by LibreOffice's Python script provider;
 * ``description.xml`` and ``META-INF/manifest.xml``.
 
 UNO names may not contain ``_``: ``edge.uno_name`` maps ``STEP_PEAK`` to
@@ -37,6 +39,7 @@ from groundstep.core import __version__
 
 from .component import CATEGORY
 from .edge import IMPLEMENTATION_NAME, MODULE_NAME, uno_name
+from .macro import MACRO_FILE, MACRO_FOLDER, macro_source
 
 __all__ = [
     "EXTENSION_ID",
@@ -101,13 +104,15 @@ def addins_xcu() -> str:
     )
 
 
-def manifest_xml() -> str:
-    """``META-INF/manifest.xml``: the type library, the Python component and the configuration."""
-    entries = (
+def manifest_xml(macro: bool = True) -> str:
+    """``META-INF/manifest.xml``: the type library, the Python component, the configuration and (`macro`) the macros."""
+    entries = [
         ("application/vnd.sun.star.uno-typelibrary;type=RDB", _RDB_NAME),
         ("application/vnd.sun.star.uno-component;type=Python", LOADER_NAME),
         ("application/vnd.sun.star.configuration-data", "CalcAddIns.xcu"),
-    )
+    ]
+    if macro:  # the folder of the Python macros; enabling it needs LibreOffice's Python script provider
+        entries.append(("application/vnd.sun.star.framework-script", f"{MACRO_FOLDER}/"))
     files = "".join(
         f'<manifest:file-entry manifest:media-type="{kind}" manifest:full-path="{path}"/>\n' for kind, path in entries
     )
@@ -218,7 +223,9 @@ def find_unoidl_write(program: Path | None = None) -> Path:
     )
 
 
-def build_extension(out: str | os.PathLike[str], site_folders: Sequence[str] = (), *, force: bool = False) -> Path:
+def build_extension(
+    out: str | os.PathLike[str], site_folders: Sequence[str] = (), *, force: bool = False, macro: bool = True
+) -> Path:
     """Write the extension `out` (``.oxt``); `site_folders` are added to LibreOffice's ``sys.path``.
 
     Parameters
@@ -231,6 +238,10 @@ def build_extension(out: str | os.PathLike[str], site_folders: Sequence[str] = (
         the loader.
     force : bool, default False
         Replace `out` if it exists.
+    macro : bool, default True
+        Ship the ``fill_results`` macro (``macro.py``). LibreOffice refuses
+        to install an extension with a Python macro when its Python script
+        provider is missing (Debian: ``libreoffice-script-provider-python``).
 
     Raises
     ------
@@ -251,11 +262,13 @@ def build_extension(out: str | os.PathLike[str], site_folders: Sequence[str] = (
         if done.returncode != 0 or not rdb.is_file():
             raise RuntimeError(f"unoidl-write failed ({done.returncode}): {done.stdout}{done.stderr}".strip())
         parts = {
-            "META-INF/manifest.xml": manifest_xml(),
+            "META-INF/manifest.xml": manifest_xml(macro),
             "description.xml": description_xml(),
             "CalcAddIns.xcu": addins_xcu(),
             LOADER_NAME: loader_source(site_folders),
         }
+        if macro:
+            parts[f"{MACRO_FOLDER}/{MACRO_FILE}"] = macro_source(site_folders)
 
         def write(path: Path) -> None:
             with zipfile.ZipFile(path, "w", zipfile.ZIP_DEFLATED) as archive:

@@ -31,7 +31,7 @@ import tempfile
 from pathlib import Path
 
 from .extension import EXTENSION_ID, build_extension, office_program_folder
-from .office import Office
+from .office import Office, OfficeError
 
 __all__ = ["InstallError", "default_profile", "install", "office_python", "remove", "site_folders"]
 
@@ -111,13 +111,34 @@ def default_profile() -> Path:
 
 
 def install(profile: str | os.PathLike[str] | None = None, python_env: str | os.PathLike[str] | None = None) -> str:
-    """Check LibreOffice's Python, build the extension for it and install it; return what was done."""
+    """Check LibreOffice's Python, build the extension for it and install it; return what was done.
+
+    LibreOffice refuses the whole extension when it cannot enable the
+    ``fill_results`` macro (no Python script provider); then the extension
+    is built again without the macro, and the message says so and how to
+    add the provider. Since that is the only difference, a second failure
+    is reported as the first one.
+    """
     python = office_python()
     folders = site_folders(python, python_env)
+    note = ""
     with tempfile.TemporaryDirectory(prefix="groundstep-calc-") as work:
         oxt = build_extension(Path(work) / "groundstep.oxt", folders)
-        where = _deploy(oxt, profile)
-    return f"installed {EXTENSION_ID} {where}; LibreOffice's Python {python} imports groundstep from {', '.join(folders)}"
+        try:
+            where = _deploy(oxt, profile)
+        except (InstallError, OfficeError) as first:
+            (Path(work) / "bare").mkdir()
+            bare = build_extension(Path(work) / "bare" / "groundstep.oxt", folders, macro=False)
+            try:
+                where = _deploy(bare, profile)
+            except (InstallError, OfficeError):
+                raise first from None
+            note = (
+                "; without the fill_results macro: LibreOffice could not enable it (its Python script provider is "
+                "missing; Debian/Ubuntu: apt-get install libreoffice-script-provider-python, then install again)"
+            )
+    return (f"installed {EXTENSION_ID} {where}; LibreOffice's Python {python} imports groundstep from "
+            f"{', '.join(folders)}{note}")  # fmt: skip
 
 
 def remove(profile: str | os.PathLike[str] | None = None) -> str:

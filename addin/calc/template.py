@@ -13,13 +13,23 @@ Excel one): ``groundstep templates DIR`` writes both.
 Calc hands a range argument to an add-in cell by cell, so every ``STEP_``
 cell given the whole 200,001-row ``input_record`` would cost the whole
 range on each call. In this template the record argument of each
-``STEP_`` call is `CALC_RECORD`: the record column from row 1 down to the
-last non-blank row, which one cell (`USED_ROWS_CELL` on the Record sheet)
-finds once per change of the record. The rows left out are blank, and the
-record reader drops trailing blanks anyway (``worksheet.cells.numbers``),
-so every answer is the one the whole range gives; an empty column gives
-``INDEX(...;0)``, the whole range again, and an error cell in the record
-reaches every ``STEP_`` cell as before.
+``STEP_`` call is `CALC_RECORD_ARGUMENT`: the record column from row 1
+down to the last non-blank row (`CALC_RECORD`; one cell, `USED_ROWS_CELL`
+on the Record sheet, finds it once per change of the record), handed over
+as one row (``TRANSPOSE``). The rows left out are blank, and the record
+reader drops trailing blanks anyway (``worksheet.cells.numbers``), so
+every number is the one the whole range gives; an empty column gives
+``INDEX(...;0)``, the whole range again.
+
+Why one row: LibreOffice's Python bridge turns each row of a range into a
+tuple of its own, and for a 2,001-cell column that conversion is most of
+a call's cost; one row of 2,001 cells converts 2-5x faster
+(``benchmarks/bench_calc.py`` measures both templates in one run). Two
+things follow, both pinned by ``tests/test_calc_extension.py``: a message
+about a record cell names it as ``column k of the acceleration range``
+(k is its Record-sheet row; the Record sheet's note says so, `RECORD_POSITION`),
+and an error value in the record (``#N/A``) reaches each ``STEP_`` cell as
+that error (a plain range argument shows Calc's ``Err:504`` instead).
 """
 
 from __future__ import annotations
@@ -40,7 +50,9 @@ from .edge import formula_name
 
 __all__ = [
     "CALC_RECORD",
+    "CALC_RECORD_ARGUMENT",
     "CALC_TEMPLATE_FILE",
+    "RECORD_POSITION",
     "USED_ROWS_CELL",
     "build_calc_package",
     "calc_formula_names",
@@ -53,11 +65,18 @@ CALC_TEMPLATE_FILE = "groundstep_calculation_package_calc.xlsx"
 #: Record-sheet cell holding the last non-blank row of the record column (0 when it is empty).
 USED_ROWS_CELL = "D1"
 _COLUMN = f"Record!$A$1:$A${RECORD_ROWS + 1}"
-#: The record argument of every STEP_ call in the Calc template: rows 1 to the last non-blank one.
+#: The record column of the Calc template: rows 1 to the last non-blank one.
 CALC_RECORD = f"Record!$A$1:INDEX({_COLUMN},Record!${USED_ROWS_CELL[0]}${USED_ROWS_CELL[1:]})"
+#: The record argument of every STEP_ call in the Calc template: `CALC_RECORD` as one row (see the module notes).
+CALC_RECORD_ARGUMENT = f"TRANSPOSE({CALC_RECORD})"
 _USED_ROWS = f'=SUMPRODUCT(MAX(({_COLUMN}<>"")*ROW({_COLUMN})))'
 _FIRST_RECORD_ARGUMENT = re.compile(r"(STEPFUNCTIONS\.STEP[A-Z]*\()input_record([,)])")
 
+#: How the Record sheet's note names a record cell in messages: Excel's template, and this one (module notes).
+_EXCEL_POSITION = "'row k of the acceleration range' means sheet row k."
+RECORD_POSITION = (
+    "'column k of the acceleration range' means sheet row k (the STEP_ cells get the record as one row)."
+)
 _NOTE = (
     "Fill the yellow cells and paste the record on the Record sheet. This file is for LibreOffice Calc with "
     "the groundstep extension (groundstep calc-extension install; see README); Excel uses "
@@ -70,7 +89,7 @@ def calc_formula_names(formula: str) -> str:
     names = sorted(FUNCTIONS, key=len, reverse=True)  # STEP_DUCTILITY_SPECTRUM before STEP_DUCTILITY
     pattern = re.compile(r"\b(" + "|".join(map(re.escape, names)) + r")\(")
     renamed = pattern.sub(lambda match: formula_name(match.group(1)) + "(", formula)
-    return _FIRST_RECORD_ARGUMENT.sub(lambda match: match.group(1) + CALC_RECORD + match.group(2), renamed)
+    return _FIRST_RECORD_ARGUMENT.sub(lambda match: match.group(1) + CALC_RECORD_ARGUMENT + match.group(2), renamed)
 
 
 def build_calc_package() -> Workbook:
@@ -87,6 +106,9 @@ def build_calc_package() -> Workbook:
     record = book["Record"]
     record[USED_ROWS_CELL] = _USED_ROWS
     record["C1"] = "last used row (for the STEP_ cells)"
+    if _EXCEL_POSITION not in str(record["B1"].value):
+        raise RuntimeError(f"the Record sheet's note no longer says {_EXCEL_POSITION}; update calc.template")
+    record["B1"] = str(record["B1"].value).replace(_EXCEL_POSITION, RECORD_POSITION)
     return book
 
 

@@ -19,6 +19,8 @@ def add(parser: argparse.ArgumentParser) -> None:
                        help="site folder LibreOffice's Python adds to import groundstep (repeatable; "
                             "default: this Python's site-packages)")  # fmt: skip
     build.add_argument("--force", action="store_true", help="replace OUT.oxt if it exists")
+    build.add_argument("--no-macro", action="store_true",
+                       help="leave out the fill_results macro (for a LibreOffice without its Python script provider)")  # fmt: skip
     for name, text in (("install", "check LibreOffice's Python, then install the extension"),
                        ("remove", "remove the extension")):  # fmt: skip
         action = actions.add_parser(name, help=text)
@@ -45,7 +47,8 @@ def run(args: argparse.Namespace, command_line: str) -> int:
             report = fill_file(args.document, args.out, force=args.force, command=command_line)
             print(f"wrote {args.out}: {len(report.layout.sheets)} result sheets")
         elif args.action == "build":
-            print(f"wrote {build_extension(args.out, args.site or site.getsitepackages(), force=args.force)}")
+            folders = args.site or site.getsitepackages()
+            print(f"wrote {build_extension(args.out, folders, force=args.force, macro=not args.no_macro)}")
         elif args.action == "install":
             print(install.install(args.profile, args.python_env))
         else:
