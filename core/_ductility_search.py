@@ -21,8 +21,16 @@ from .inelastic_results import ConvergenceError, DuctilityTargetWarning
 
 #: Finest split of a step that fails to converge (a power of two).
 MAX_PIECES = 256
-#: Strength candidates per period in each pass of the grid stage.
-_GRID_CANDIDATES = 64
+#: Strength candidates per period in each pass of the grid stage. Every grid
+#: strength below the first one reaching the largest target must be run in
+#: full, so the work of the stage is that many runs plus what the last pass
+#: runs beyond it (half a pass on average). 16 rather than 64 cut the
+#: oscillator-steps of benchmarks/bench_inelastic.py's spectrum from 121 to
+#: 102 million (8 gave 99 million in twice the kernel calls, each with fewer
+#: chunks to share between threads); the wall time fell less (0.96x on one
+#: thread), as chunks then mix 4 periods and iterate more often. The answer
+#: does not depend on it.
+_GRID_CANDIDATES = 16
 #: Spacing of the grid stage: R_j = GRID_RATIO**j, j = 1, 2, ... The grid is
 #: the same whatever the targets of the call, so each target's bracket (the
 #: first grid strength whose μ reaches it) does not depend on the others. μ(R)

@@ -39,3 +39,17 @@ def test_answer_does_not_depend_on_the_other_targets():
         together = ductility_spectrum(RECORD, periods, [6.0, 2.0, 4.0])
     # same grid bracket, same refinement steps: equal to the kernel's round-off (lanes grouped differently)
     np.testing.assert_allclose(together.reduction_factor[1], alone.reduction_factor[0], rtol=1e-12)
+
+
+def test_grid_pass_size_does_not_change_the_answer(monkeypatch):
+    """Scanning the fixed 1 % grid 16 strengths per pass gives the strengths of the former 64 per pass."""
+    from groundstep.core import _ductility_search
+
+    periods = np.geomspace(0.1, 3.0, 25)
+    with collect_warnings():
+        current = ductility_spectrum(RECORD, periods, [2.0, 4.0, 6.0], max_step_ratio=0.1)
+        monkeypatch.setattr(_ductility_search, "_GRID_CANDIDATES", 64)  # the former pass size, as reference
+        former = ductility_spectrum(RECORD, periods, [2.0, 4.0, 6.0], max_step_ratio=0.1)
+    # same grid brackets, same refinement steps: equal to the kernel's round-off (lanes grouped differently)
+    np.testing.assert_allclose(current.reduction_factor, former.reduction_factor, rtol=1e-12)
+    np.testing.assert_allclose(current.achieved_ductility, former.achieved_ductility, rtol=1e-12)
