@@ -99,7 +99,7 @@ def fourier_amplitude(record: Record, smoothing: str | None = None, *, bandwidth
 
     Notes
     -----
-    Raw spectrum: A_k = |X_k|·dt with X = ``scipy.fft.rfft`` of the n
+    Raw spectrum: A_k = |X_k|·dt with X = ``numpy.fft.rfft`` of the n
     samples (no padding, no taper), which approximates the continuous
     transform |∫ a(t) e^(-2πift) dt| at f_k = k/(n·dt). Parseval's identity
     then reads dt·Σ a_j² = Δf·Σ w_k A_k² with Δf = 1/(n·dt), w = 1 at
@@ -137,10 +137,9 @@ def fourier_amplitude(record: Record, smoothing: str | None = None, *, bandwidth
     if smoothing is not None and smoothing.strip().lower() != KONNO_OHMACHI:
         raise ValueError(f"`smoothing` must be None or {KONNO_OHMACHI!r}, got {smoothing!r}")
     n, dt = record.n, record.dt
-    import scipy.fft  # imported when first used
-
-    frequencies = scipy.fft.rfftfreq(n, dt)
-    amplitudes = np.abs(scipy.fft.rfft(record.accel)) * dt
+    # numpy's pocketfft: the same transform as scipy.fft, without importing scipy (0.15-0.6 s) for it
+    frequencies = np.fft.rfftfreq(n, dt)
+    amplitudes = np.abs(np.fft.rfft(record.accel)) * dt
     if smoothing is None:
         return FourierAmplitude(frequencies, amplitudes, None, dt, n)
     nonzero, values = frequencies[1:], amplitudes[1:]

@@ -8,6 +8,7 @@ all use it, so a workbook and its re-check are computed the same way.
 
 from __future__ import annotations
 
+import importlib.metadata
 import math
 import platform
 import sys
@@ -752,6 +753,6 @@ def _yielding_table(oscillators, results, out: OutputUnits, hardening: float, me
 def _library_versions() -> str:
     import numba
     import openpyxl
-    import scipy
 
-    return f"{np.__version__} / {scipy.__version__} / {numba.__version__} / {openpyxl.__version__}"
+    scipy = importlib.metadata.version("scipy")  # its installed version, without importing scipy for it
+    return f"{np.__version__} / {scipy} / {numba.__version__} / {openpyxl.__version__}"
