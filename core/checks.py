@@ -242,6 +242,9 @@ def check_period(value: ArrayLike, label: str = "period", *, rigid: bool = True)
     >>> check_period(0.5)
     0.5
     """
+    low, high = PERIOD_RANGE
+    if type(value) is float and (value == 0.0 or low <= value <= high) and (rigid or value != 0.0):
+        return value  # the common case on floats; NaN, negatives and the rest get the full checks below
     array = check_periods(value, label)
     if array.size != 1:
         raise ValueError(f"{named(label)} must be one number, got {array.size}; use a spectrum function for many")
@@ -280,6 +283,9 @@ def check_periods(values: ArrayLike, label: str = "periods") -> NDArray[np.float
     [0.0, 0.2]
     """
     array = as_vector(values, label)
+    low, high = PERIOD_RANGE
+    if bool((((array >= low) & (array <= high)) | (array == 0.0)).all()):  # every period fine (NaN is not)
+        return array
     negative = np.flatnonzero(array < 0.0)
     if negative.size:
         index = int(negative[0])
