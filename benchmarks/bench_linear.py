@@ -197,7 +197,8 @@ def small_calls(record: Record) -> None:
     timings = {}
     owner = _kernels.balance(used, starts, numba.get_num_threads())
     kernels = {"one thread": lambda: _kernels.peaks_serial(load, coef, used, starts, zeros, zeros, out),
-               "parallel": lambda: _kernels.peaks(load, coef, used, starts, zeros, zeros, out, owner)}  # fmt: skip
+               "parallel": lambda: _kernels.PART_THREADS.run(
+                   _kernels.peaks, (load, coef, used, starts, zeros, zeros, out, owner), numba.get_num_threads())}  # fmt: skip
     for label, kernel in kernels.items():
         kernel()
         timings[label] = best_of(lambda k=kernel: [k() for _ in range(50)], REPEATS) / 50

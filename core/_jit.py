@@ -12,7 +12,11 @@ that imported ``scipy.linalg`` or numba's registry already is left as it is.
 
 from __future__ import annotations
 
+import os
 import sys
+import threading
+from collections.abc import Callable
+from typing import Any
 
 
 def _import_array_math_without_blas_probe() -> None:
@@ -30,4 +34,42 @@ _import_array_math_without_blas_probe()
 
 from numba import get_num_threads, njit, prange  # noqa: E402
 
-__all__ = ["get_num_threads", "njit", "prange"]
+__all__ = ["PART_THREADS", "get_num_threads", "njit", "prange"]
+
+
+class _PartThreads:
+    """Python threads that run a ``nogil`` kernel's parts beside the calling thread.
+
+    A kernel compiled with ``parallel=True`` costs numba's parallel compiler
+    seconds to build on a cold cache (10 s for the spectrum kernel on the
+    2-core machine, measured with ``warm_up``); a plain ``nogil`` kernel that
+    runs one part of the work, called from a few threads, compiles like any
+    serial kernel and runs the same machine code per chunk. The pool is made
+    on first use and again in a forked child (a fork copies no threads).
+    """
+
+    def __init__(self) -> None:
+        self._pool: Any = None
+        self._pid = -1
+        self._lock = threading.Lock()
+
+    def run(self, kernel: Callable[..., None], args: tuple[Any, ...], parts: int) -> None:
+        """``kernel(*args, part)`` for part 0 .. parts-1; part 0 on this thread; re-raises a part's error."""
+        if parts <= 1:
+            kernel(*args, 0)
+            return
+        with self._lock:
+            if self._pool is None or self._pid != os.getpid() or self._pool._max_workers < parts - 1:
+                from concurrent.futures import ThreadPoolExecutor
+
+                self._pool = ThreadPoolExecutor(max_workers=parts - 1, thread_name_prefix="groundstep-kernel")
+                self._pid = os.getpid()
+            pool = self._pool
+        others = [pool.submit(kernel, *args, part) for part in range(1, parts)]
+        kernel(*args, 0)
+        for other in others:
+            other.result()
+
+
+#: The one pool of kernel threads of this process.
+PART_THREADS = _PartThreads()

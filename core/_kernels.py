@@ -26,7 +26,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ._jit import get_num_threads, njit, prange
+from ._jit import PART_THREADS, get_num_threads, njit
 
 #: Rows of a coefficient array (10, n_oscillators).
 N_COEFFICIENTS = 10
@@ -186,9 +186,9 @@ def balance(substeps, starts, parts):
     return owner
 
 
-@njit(cache=True, parallel=True, fastmath=True)
-def peaks(load, coef, substeps, starts, u0, v0, out, owner):
-    """Peak |u|, |v| and |ü + ü_g| of many oscillators, read at every sub-step.
+@njit(cache=True, nogil=True, fastmath=True)
+def peaks(load, coef, substeps, starts, u0, v0, out, owner, part):
+    """Peak |u|, |v| and |ü + ü_g| of the oscillators in the chunks `owner` gives to `part`.
 
     Parameters
     ----------
@@ -197,8 +197,9 @@ def peaks(load, coef, substeps, starts, u0, v0, out, owner):
     substeps : (n_osc,) int64, sub-steps s per record step, equal within a chunk
     starts : (n_chunks + 1,) int64, chunk boundaries (``chunk_starts``)
     u0, v0 : (n_osc,) float64 initial state
-    out : (3, n_osc) float64, filled with the three peaks
+    out : (3, n_osc) float64, filled with the three peaks of those chunks
     owner : (n_chunks,) int64, the thread of each chunk (``balance``)
+    part : int, the thread this call is
 
     The load is linear inside each record step, so sub-step m of s runs from
     p0 + (p1 - p0)·m/s to p0 + (p1 - p0)·(m + 1)/s. Oscillators of a chunk
@@ -207,31 +208,28 @@ def peaks(load, coef, substeps, starts, u0, v0, out, owner):
     it can prove the rows do not overlap. Each visit of that loop takes
     `VISIT` sub-steps with the state held in registers (the loads of those
     sub-steps queued first, whatever the sub-step count), so sub-stepped and
-    plain chunks run the same loop, over a multiple of `LANES` lanes. Each
-    thread runs the chunks `owner` gives it.
+    plain chunks run the same loop, over a multiple of `LANES` lanes. The
+    function holds no GIL: `spectrum_peaks` runs its parts on threads.
     """
-    n_chunks = starts.shape[0] - 1
-    parts = owner.max() + 1 if n_chunks else 0
-    for part in prange(parts):
-        for chunk in range(n_chunks):
-            if owner[chunk] == part:
-                _chunk(load, coef, substeps, starts, u0, v0, out, chunk)
-
-
-@njit(cache=True, fastmath=True)
-def peaks_serial(load, coef, substeps, starts, u0, v0, out):
-    """`peaks` on the calling thread only (small work: see `SERIAL_WORK`)."""
     for chunk in range(starts.shape[0] - 1):
-        _chunk(load, coef, substeps, starts, u0, v0, out, chunk)
+        if owner[chunk] == part:
+            _chunk(load, coef, substeps, starts, u0, v0, out, chunk)
+
+
+def peaks_serial(load, coef, substeps, starts, u0, v0, out):
+    """`peaks` of every chunk on the calling thread (small work: see `SERIAL_WORK`)."""
+    peaks(load, coef, substeps, starts, u0, v0, out, np.zeros(starts.shape[0] - 1, np.int64), 0)
 
 
 def spectrum_peaks(load, coef, substeps, starts, u0, v0, out):
-    """`peaks` over chunks shared by `balance`, or `peaks_serial` below `SERIAL_WORK` oscillator-sub-steps."""
+    """`peaks` over chunks shared by `balance` among numba's thread count, or on this thread below `SERIAL_WORK`."""
     work = (load.shape[0] - 1) * int(substeps.sum())
-    if work < SERIAL_WORK:
+    parts = 1 if work < SERIAL_WORK else get_num_threads()
+    if parts == 1:
         peaks_serial(load, coef, substeps, starts, u0, v0, out)
     else:
-        peaks(load, coef, substeps, starts, u0, v0, out, balance(substeps, starts, get_num_threads()))
+        owner = balance(substeps, starts, parts)
+        PART_THREADS.run(peaks, (load, coef, substeps, starts, u0, v0, out, owner), parts)
 
 
 @njit(cache=True)

@@ -138,8 +138,8 @@ def fourier_amplitude(record: Record, smoothing: str | None = None, *, bandwidth
         raise ValueError(f"`smoothing` must be None or {KONNO_OHMACHI!r}, got {smoothing!r}")
     n, dt = record.n, record.dt
     # numpy's pocketfft: the same transform as scipy.fft, without importing scipy (0.15-0.6 s) for it
-    frequencies = np.fft.rfftfreq(n, dt)
-    amplitudes = np.abs(np.fft.rfft(record.accel)) * dt
+    frequencies = np.asarray(np.fft.rfftfreq(n, dt), dtype=np.float64)
+    amplitudes = np.asarray(np.abs(np.fft.rfft(record.accel)) * dt, dtype=np.float64)
     if smoothing is None:
         return FourierAmplitude(frequencies, amplitudes, None, dt, n)
     nonzero, values = frequencies[1:], amplitudes[1:]

@@ -477,7 +477,7 @@ def test_results_are_built_from_named_fields():
 
 
 def test_serial_and_parallel_spectrum_kernels_agree_bit_for_bit():
-    """The one-thread kernel (small work) and the parallel one run the same chunk code: identical peaks."""
+    """The one-thread path (small work) and two threads sharing the chunks run the same chunk code: identical peaks."""
     from groundstep.core import _kernels
     from groundstep.core.linear import _step_coefficients
     from groundstep.core.methods import resolve_method
@@ -491,7 +491,8 @@ def test_serial_and_parallel_spectrum_kernels_agree_bit_for_bit():
     starts, zeros = _kernels.chunk_starts(used), np.zeros(150)
     serial, parallel = np.empty((3, 150)), np.empty((3, 150))
     _kernels.peaks_serial(load, coef, used, starts, zeros, zeros, serial)
-    _kernels.peaks(load, coef, used, starts, zeros, zeros, parallel, _kernels.balance(used, starts, 2))
+    owner = _kernels.balance(used, starts, 2)
+    _kernels.PART_THREADS.run(_kernels.peaks, (load, coef, used, starts, zeros, zeros, parallel, owner), 2)
     np.testing.assert_array_equal(serial, parallel)  # exact: each chunk is computed by the same compiled code
 
 
