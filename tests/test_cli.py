@@ -153,6 +153,21 @@ def test_fill_with_record_option_leaves_input_byte_identical(tmp_path, capsys):
     )
 
 
+def test_fill_says_which_steps_the_verification_sheet_replays(tmp_path, capsys):
+    """A record longer than the 2,000-step window: the summary names the replayed steps, not 'every step'."""
+    record = synthetic_record(30.0, 0.01, pga=0.2, seed=5)  # 3,001 samples: record steps 0-3000
+    source = tmp_path / "long.xlsx"
+    reference = _input_book(source, record)
+    code = main(["fill", str(source), "--out", str(tmp_path / "o.xlsx"), "--record", reference, "--dt", "0.01",
+                 "--unit", "g", "--periods", "0.2,2,5"])  # fmt: skip
+    out = capsys.readouterr().out
+    assert code == 0
+    line = next(line for line in out.splitlines() if "Verification sheet" in line)
+    assert "every step" not in line and " of 0-3000 (a window around the peaks)" in line, line
+    first, last = (int(v) for v in line.split("record steps ")[1].split(" of ")[0].split("-"))
+    assert last - first == 2000  # the window: VERIFY_WINDOW steps past its first row
+
+
 def test_fill_reads_named_input_cells(tmp_path, capsys):
     """With gs_in_* defined names in the input workbook, fill needs no record options."""
     from openpyxl.workbook.defined_name import DefinedName

@@ -241,9 +241,17 @@ def print_headline(out: Path, report: Any, seconds: float) -> None:
         )
     if "target" in h:
         print(f"  target spectrum on the {SPECTRA} chart: {h['target']}")
+    window = report.content.get("verification_start", {})
+    first, rows = window.get("verification_first_step", 0), window.get("verification_steps_replayed")
+    total = window.get("verification_record_steps")
+    replayed = (
+        "every step written as formulas"
+        if rows is None or total is None or rows >= total
+        else f"record steps {first}-{first + rows - 1} of 0-{total - 1} (a window around the peaks) written as formulas"
+    )
     print(
         f"  Verification sheet: T = {h['verification_period']:g} s, damping {h['verification_damping']:g}, "
-        "every step written as formulas (open in a spreadsheet; check with 'groundstep verify')"
+        f"{replayed} (open in a spreadsheet; check with 'groundstep verify')"
     )
     print(f"  {CAUTION}")
     print_notes(report.content.get("findings", {}))
