@@ -62,12 +62,12 @@ def test_text_formulas_booleans_and_positions(tmp_path):
     assert one.max_row == 5 and one.max_column == 5
 
 
-def test_cells_after_a_gap_carry_their_reference(tmp_path):
-    """A cell that follows its left neighbour has no r attribute; one after a gap has it (ECMA-376 §18.3.1.4)."""
+def test_every_cell_carries_its_reference(tmp_path):
+    """Every cell names itself (r="A2"), gap or not: Gnumeric misplaces cells without it (seen in its recalc test)."""
     path = _write(tmp_path, [("One", 2, 1, [[1.0, 2.0]], None, False), ("One", 2, 5, [[3.0]], None, False)])
     with zipfile.ZipFile(path) as package:
         text = package.read("xl/worksheets/sheet1.xml").decode()
-    assert '<row r="2"><c><v>1.0</v></c><c><v>2.0</v></c><c r="E2"><v>3.0</v></c></row>' in text
+    assert '<row r="2"><c r="A2"><v>1.0</v></c><c r="B2"><v>2.0</v></c><c r="E2"><v>3.0</v></c></row>' in text
     assert '<dimension ref="A1:E2"/>' in text
     assert [c.value for c in openpyxl.load_workbook(path)["One"][2]] == [1.0, 2.0, None, None, 3.0]
 
