@@ -52,7 +52,34 @@ CELL_CAPACITY = 2 * RECORD_CAPACITY
 CELL_BYTES = 16 * 2**20
 
 
-class LRUCache:
+class _Bounded:
+    """What both bounded stores share: their bounds, a lock, hit and miss counts, the bytes held."""
+
+    def __init__(self, capacity: int, max_bytes: int | None) -> None:
+        if capacity < 1:
+            raise ValueError(f"`capacity` must be >= 1, got {capacity!r}")
+        self.capacity = int(capacity)
+        self.max_bytes = max_bytes
+        self._bytes = 0
+        self._lock = threading.Lock()
+        self.hits = 0
+        self.misses = 0
+
+    @property
+    def nbytes(self) -> int:
+        """Bytes held (estimated for `LRUCache`, exact for `CellIndex`); at most `max_bytes`."""
+        with self._lock:
+            return self._bytes
+
+    def __len__(self) -> int:
+        with self._lock:
+            return self._count()
+
+    def _count(self) -> int:
+        raise NotImplementedError
+
+
+class LRUCache(_Bounded):
     """A least-recently-used map of bounded length, safe under concurrent calls.
 
     Parameters
@@ -62,26 +89,12 @@ class LRUCache:
     """
 
     def __init__(self, capacity: int, max_bytes: int | None = None) -> None:
-        if capacity < 1:
-            raise ValueError(f"`capacity` must be >= 1, got {capacity!r}")
-        self.capacity = int(capacity)
-        self.max_bytes = max_bytes
+        super().__init__(capacity, max_bytes)
         self._entries: OrderedDict[Hashable, Any] = OrderedDict()
         self._sizes: dict[Hashable, int] = {}
-        self._bytes = 0
-        self._lock = threading.Lock()
-        self.hits = 0
-        self.misses = 0
 
-    @property
-    def nbytes(self) -> int:
-        """Estimated bytes held (`size_of` of each value); at most `max_bytes`."""
-        with self._lock:
-            return self._bytes
-
-    def __len__(self) -> int:
-        with self._lock:
-            return len(self._entries)
+    def _count(self) -> int:
+        return len(self._entries)
 
     def get_or_compute(self, key: Hashable, compute: Callable[[], _T]) -> _T:
         """Return the value stored under `key`, computing and storing it on a miss.
@@ -207,7 +220,7 @@ def is_plain(cells: Any) -> bool:
     return all(type(row) in _PLAIN_SCALARS or is_plain(row) for row in cells)
 
 
-class CellIndex:
+class CellIndex(_Bounded):
     """Cells seen before -> their `digest`, found by a fingerprint and confirmed by a full comparison.
 
     Hashing 20,000 cells costs more than comparing them with cells kept
@@ -235,25 +248,14 @@ class CellIndex:
     """
 
     def __init__(self, capacity: int = CELL_CAPACITY, max_bytes: int = CELL_BYTES) -> None:
-        self.capacity = int(capacity)
-        self.max_bytes = int(max_bytes)
+        super().__init__(capacity, int(max_bytes))
+        self._limit = int(max_bytes)  # `max_bytes`, typed as the int it always is here
         # fingerprint -> [(form, digest), ...]; the order is the use order of fingerprints
         self._entries: OrderedDict[Hashable, list[tuple[Any, bytes]]] = OrderedDict()
-        self._count = 0
-        self._bytes = 0
-        self._lock = threading.Lock()
-        self.hits = 0
-        self.misses = 0
+        self._forms = 0
 
-    @property
-    def nbytes(self) -> int:
-        """Bytes of the kept forms; at most `max_bytes`."""
-        with self._lock:
-            return self._bytes
-
-    def __len__(self) -> int:
-        with self._lock:
-            return self._count
+    def _count(self) -> int:
+        return self._forms
 
     @staticmethod
     def form(cells: Any) -> tuple[Hashable, Any] | None:
@@ -295,27 +297,27 @@ class CellIndex:
         """Keep the exact form of plain cells (`is_plain`) with their digest."""
         kept = exact.copy() if isinstance(exact, np.ndarray) else exact  # the caller's array may change later
         size = kept.nbytes if isinstance(kept, np.ndarray) else len(kept)
-        if size > self.max_bytes:
+        if size > self._limit:
             return
         with self._lock:
             entries = self._entries.setdefault(fingerprint, [])
             entries.append((kept, digest_))
             self._entries.move_to_end(fingerprint)
-            self._count += 1
+            self._forms += 1
             self._bytes += size
-            while self._count > self.capacity or self._bytes > self.max_bytes:
+            while self._forms > self.capacity or self._bytes > self._limit:
                 oldest = next(iter(self._entries))
                 dropped = self._entries[oldest].pop(0)
                 if not self._entries[oldest]:
                     del self._entries[oldest]
-                self._count -= 1
+                self._forms -= 1
                 self._bytes -= dropped[0].nbytes if isinstance(dropped[0], np.ndarray) else len(dropped[0])
 
     def clear(self) -> None:
         """Forget every entry and zero the counters."""
         with self._lock:
             self._entries.clear()
-            self._count = self._bytes = self.hits = self.misses = 0
+            self._forms = self._bytes = self.hits = self.misses = 0
 
 
 def _same_form(new: Any, kept: Any) -> bool:
