@@ -47,6 +47,8 @@ HISTORY_CAPACITY = 4
 RECORD_BYTES = 48 * 2**20
 RESULT_BYTES = 32 * 2**20
 HISTORY_BYTES = 64 * 2**20
+#: Option readings kept by `OPTIONS` (a few small values each).
+OPTION_CAPACITY = 1024
 #: Cells kept by `CELLS` for the exact comparison (marshal bytes or an array copy).
 CELL_CAPACITY = 2 * RECORD_CAPACITY
 CELL_BYTES = 16 * 2**20
@@ -136,6 +138,8 @@ class LRUCache(_Bounded):
 RECORDS = LRUCache(RECORD_CAPACITY, RECORD_BYTES)
 RESULTS = LRUCache(RESULT_CAPACITY, RESULT_BYTES)
 HISTORIES = LRUCache(HISTORY_CAPACITY, HISTORY_BYTES)
+#: Option cells already read (units, quantity names as typed) -> what they gave (``convert``).
+OPTIONS = LRUCache(OPTION_CAPACITY)
 
 
 def size_of(value: Any, _depth: int = 0) -> int:
@@ -190,10 +194,17 @@ def digest(cells: Any) -> bytes:
         header = f"a{cells.dtype.str}{cells.shape}|".encode()
         return hashlib.sha256(header + np.ascontiguousarray(cells).tobytes()).digest()
     try:
-        payload = b"m" + marshal.dumps(cells, 2)
+        payload = marshal.dumps(cells, 2)
     except ValueError:
         return strict_digest(cells)
-    return hashlib.sha256(payload).digest()
+    return _marshal_digest(payload)
+
+
+def _marshal_digest(payload: bytes) -> bytes:
+    """SHA-256 of ``b"m"`` and the marshal bytes of plain cells (`digest`, `cell_digest`), without a joined copy."""
+    hasher = hashlib.sha256(b"m")
+    hasher.update(payload)
+    return hasher.digest()
 
 
 def strict_digest(cells: Any) -> bytes:
@@ -345,12 +356,7 @@ def cell_digest(cells: Any) -> bytes | None:
         return kept
     if not is_plain(cells):
         return None
-    if isinstance(cells, np.ndarray):
-        made = digest(cells)
-    else:
-        hasher = hashlib.sha256(b"m")
-        hasher.update(exact)
-        made = hasher.digest()
+    made = digest(cells) if isinstance(cells, np.ndarray) else _marshal_digest(exact)
     CELLS.remember(fingerprint, exact, made)
     return made
 
@@ -410,7 +416,7 @@ ASKED = PeriodMemory()
 
 def clear_all() -> None:
     """Empty every cache (the benchmark's cold start; tests that count parses)."""
-    for cache in (RECORDS, RESULTS, HISTORIES):
+    for cache in (RECORDS, RESULTS, HISTORIES, OPTIONS):
         cache.clear()
     CELLS.clear()
     ASKED.clear()

@@ -25,7 +25,6 @@ __all__ = [
     "Cell",
     "cached",
     "choice",
-    "clear_read",
     "label",
     "method",
     "method_key",
@@ -58,25 +57,15 @@ def record(accel: Cell, dt: Cell, unit: Cell) -> tuple[Record, tuple[Any, ...]]:
     return parsed, key
 
 
-#: Option cells already read: (which option, the text or None as typed) -> the value it gave. Text
-#: cells only (type str exactly, or blank), so a hit is the same reading; failures are not kept.
-_READ: dict[tuple[Any, ...], Any] = {}
-_READ_CAPACITY = 1024
-
-
 def _remembered(key: tuple[Any, ...], read: Callable[[], Any]) -> Any:
-    """`read()` once per option key; keys holding anything but text or None are read every time."""
+    """`read()` once per option key (in `cache.OPTIONS`); keys holding anything but text or None are read every time.
+
+    Text cells only (type str exactly, or blank), so a hit is the same
+    reading; a reading that raises is not kept.
+    """
     if not all(part is None or type(part) is str for part in key[1:]):
         return read()
-    try:
-        return _READ[key]
-    except KeyError:
-        pass
-    value = read()
-    if len(_READ) >= _READ_CAPACITY:
-        _READ.clear()
-    _READ[key] = value
-    return value
+    return cache.OPTIONS.get_or_compute(key, read)
 
 
 def _record_unit(unit: Cell) -> str:
@@ -230,11 +219,6 @@ def cached(store: cache.LRUCache, key: Hashable, compute: Callable[[], Any]) -> 
 def summary(result: Any, quantities: dict[str, Quantity]) -> dict[str, Any]:
     """The scalar results a function may return, kept instead of the (large) result object."""
     return {q.attribute: getattr(result, q.attribute) for q in quantities.values()}
-
-
-def clear_read() -> None:
-    """Forget the option cells already read (tests that count readings)."""
-    _READ.clear()
 
 
 def _plain(name: str) -> str:
