@@ -79,15 +79,16 @@ class SheetCells:
     def write_column(self, row: int, column: int, values: Sequence[Any], number_format: str | None) -> None:
         """Keep one column of values from (`row`, `column`) down: the fast path for long numeric columns."""
         index = self._style(number_format, False)
-        head = f' s="{index}"><v>' if index else "><v>"
+        style = f' s="{index}"' if index else ""
+        head = f"{style}><v>"
         rows = self._rows
         for i, value in enumerate(values, start=row):
             if type(value) is float and math.isfinite(value):
                 rows.setdefault(i, []).append((column, f"{head}{value!r}</v></c>"))
             elif value is not None:
-                rows.setdefault(i, []).append((column, self._cell(value, head[:-4], i, column)))
-            elif index:  # a blank cell keeps its format
-                rows.setdefault(i, []).append((column, f"{head[:-4]}/>"))
+                rows.setdefault(i, []).append((column, self._cell(value, style, i, column)))
+            elif style:  # a blank cell keeps its format
+                rows.setdefault(i, []).append((column, f"{style}/>"))
         if values:
             self.max_row = max(self.max_row, row + len(values) - 1)
             self.max_column = max(self.max_column, column)
