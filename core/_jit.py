@@ -50,6 +50,7 @@ class _PartThreads:
 
     def __init__(self) -> None:
         self._pool: Any = None
+        self._workers = 0  # threads of `_pool` besides the caller's
         self._pid = -1
         self._lock = threading.Lock()
 
@@ -59,11 +60,11 @@ class _PartThreads:
             kernel(*args, 0)
             return
         with self._lock:
-            if self._pool is None or self._pid != os.getpid() or self._pool._max_workers < parts - 1:
+            if self._pool is None or self._pid != os.getpid() or self._workers < parts - 1:
                 from concurrent.futures import ThreadPoolExecutor
 
                 self._pool = ThreadPoolExecutor(max_workers=parts - 1, thread_name_prefix="groundstep-kernel")
-                self._pid = os.getpid()
+                self._workers, self._pid = parts - 1, os.getpid()
             pool = self._pool
         others = [pool.submit(kernel, *args, part) for part in range(1, parts)]
         kernel(*args, 0)
