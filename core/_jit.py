@@ -63,6 +63,8 @@ class _PartThreads:
             if self._pool is None or self._pid != os.getpid() or self._workers < parts - 1:
                 from concurrent.futures import ThreadPoolExecutor
 
+                if self._pool is not None and self._pid == os.getpid():  # too small: let its threads end
+                    self._pool.shutdown(wait=False)
                 self._pool = ThreadPoolExecutor(max_workers=parts - 1, thread_name_prefix="groundstep-kernel")
                 self._workers, self._pid = parts - 1, os.getpid()
             pool = self._pool
