@@ -91,12 +91,12 @@ def run(args: argparse.Namespace, command_line: str) -> int:
     progress = Progress(len(entries), not args.quiet, "records", ("done", "skipped", "failed"))
 
     def show(outcome: RecordOutcome, manifest: ResultsManifest) -> None:
-        progress.step(outcome.file, outcome.status, _without_name(outcome.file, outcome.message))
+        progress.step(outcome.file, outcome.status, outcome.message)
 
     summary = run_survey(entries, settings, out, workers=args.workers, scheduler=args.scheduler, on_outcome=show)
     progress.close()
     for file, message in summary.failures[:_LISTED_FAILURES]:
-        print(f"groundstep batch: failed: {file}: {_without_name(file, message)}", file=sys.stderr)
+        print(f"groundstep batch: failed: {file}: {message}", file=sys.stderr)
     if len(summary.failures) > _LISTED_FAILURES:
         print(f"groundstep batch: ... {len(summary.failures) - _LISTED_FAILURES} more failures in {out / RESULTS_FILE}",
               file=sys.stderr)  # fmt: skip
@@ -108,12 +108,6 @@ def run(args: argparse.Namespace, command_line: str) -> int:
         print("groundstep batch: interrupted; run the same command again to resume", file=sys.stderr)
     print(CAUTION)
     return EXIT_INPUT if summary.failures or summary.interrupted else EXIT_OK
-
-
-def _without_name(file: str, message: str) -> str:
-    """The message without the record's own name in front (record readers start with it; the line names it already)."""
-    prefix = f"{Path(file).name}: "
-    return message[len(prefix) :] if message.startswith(prefix) else message
 
 
 def _settings(args: argparse.Namespace) -> SurveySettings:

@@ -159,7 +159,8 @@ def run_record(
     try:
         payload = analyse_record(entry, settings, digest)
     except (ValueError, TypeError, OSError, ArithmeticError, ConvergenceError) as exc:
-        return RecordOutcome(entry.file, "failed", _one_line(exc), digest, time.perf_counter() - start)
+        message = _without_name(entry.file, _one_line(exc))
+        return RecordOutcome(entry.file, "failed", message, digest, time.perf_counter() - start)
     except Exception as exc:  # noqa: BLE001 - a bug must not stop the other records; it is reported as such
         message = f"internal error: {type(exc).__name__}: {_one_line(exc)}"
         return RecordOutcome(entry.file, "failed", message, digest, time.perf_counter() - start)
@@ -314,3 +315,9 @@ def _read_bytes(path: str) -> bytes:
 def _one_line(item: BaseException | Warning) -> str:
     text = str(item).strip()
     return text.splitlines()[0] if text else type(item).__name__
+
+
+def _without_name(file: str, message: str) -> str:
+    """A reader's message without the record's own file name in front: the outcome names the file already."""
+    prefix = f"{Path(file).name}: "
+    return message[len(prefix) :] if message.startswith(prefix) else message
