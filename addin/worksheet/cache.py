@@ -24,9 +24,12 @@ them in one spectrum pass (see ``convert.peaks``).
 
 from __future__ import annotations
 
+import dataclasses
+import functools
 import hashlib
 import marshal
 import pickle
+import sys
 import threading
 from collections import OrderedDict
 from collections.abc import Callable, Hashable
@@ -149,10 +152,10 @@ def size_of(value: Any, _depth: int = 0) -> int:
     dominate every cached value (records, histories), and small Python
     objects are counted by ``sys.getsizeof``.
     """
-    import dataclasses
-    import sys
-
-    if isinstance(value, np.ndarray):
+    kind = type(value)
+    if kind in _ATOMS:
+        return sys.getsizeof(value)
+    if kind is np.ndarray:
         return int(value.nbytes) + 112  # 112: the array object itself (sys.getsizeof of an empty array)
     if _depth > 4:
         return sys.getsizeof(value)
@@ -160,9 +163,24 @@ def size_of(value: Any, _depth: int = 0) -> int:
         return sys.getsizeof(value) + sum(size_of(k, _depth + 1) + size_of(v, _depth + 1) for k, v in value.items())
     if isinstance(value, (list, tuple)):
         return sys.getsizeof(value) + sum(size_of(item, _depth + 1) for item in value)
-    if dataclasses.is_dataclass(value) and not isinstance(value, type):
-        return 64 + sum(size_of(getattr(value, f.name), _depth + 1) for f in dataclasses.fields(value))
+    if isinstance(value, np.ndarray):
+        return int(value.nbytes) + 112
+    names = _field_names(kind)
+    if names is not None:
+        return 64 + sum(size_of(getattr(value, name), _depth + 1) for name in names)
     return sys.getsizeof(value)
+
+
+#: Types `size_of` counts by ``sys.getsizeof`` alone (no parts of their own to add).
+_ATOMS = frozenset({float, int, bool, str, bytes, complex, type(None)})
+
+
+@functools.lru_cache(maxsize=256)
+def _field_names(kind: type) -> tuple[str, ...] | None:
+    """The field names of a dataclass type (``dataclasses.fields`` costs microseconds a call), else None."""
+    if not dataclasses.is_dataclass(kind):
+        return None
+    return tuple(field.name for field in dataclasses.fields(kind))
 
 
 #: Cell values whose marshal bytes say their type (``bool`` is written apart from ``int``).
