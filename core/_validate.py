@@ -21,6 +21,8 @@ def named(label: str) -> str:
 
 def as_float(value: object, argument: str) -> float:
     """Return `value` as a finite float or raise naming `argument`."""
+    if type(value) is float and math.isfinite(value):  # the common case, without the abstract-class checks
+        return value
     if isinstance(value, bool) or not isinstance(value, (Real, np.floating, np.integer)):
         raise TypeError(f"{named(argument)} must be a number, got {type(value).__name__} {value!r}")
     try:

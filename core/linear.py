@@ -123,11 +123,10 @@ def linear_response(
     u0 = _budget.check_state(_validate.as_float(initial_displacement, "initial_displacement"), "initial_displacement", "m")
     v0 = _budget.check_state(_validate.as_float(initial_velocity, "initial_velocity"), "initial_velocity", "m/s")
 
-    time = record.time
-    load = -record.accel
     if period == 0.0:
         if u0 != 0.0 or v0 != 0.0:
             raise ValueError("a rigid oscillator (`period` 0) cannot start with a displacement or velocity")
+        time = record.time
         zeros = np.zeros(record.n)
         total = record.accel.copy()
         index = int(np.argmax(np.abs(total)))
