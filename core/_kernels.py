@@ -100,21 +100,22 @@ def substep_counts(dt, periods, limit, most, counts):
 def spectrum_plan(periods, dampings, dt, limit, most):
     """Sub-step counts and sorted order of the grid of a spectrum (oscillator f = d·n_periods + p).
 
-    Returns (counts, order, sorted_counts, starts, total, largest, worst,
-    needed): the count of each oscillator (1 when rigid), the moving
+    Returns (counts, order, sorted_counts, starts, total, largest, split,
+    worst, needed): the count of each oscillator (1 when rigid), the moving
     oscillators (period > 0) stably sorted by count, their counts in that
     order, the chunk boundaries over them (``chunk_starts``), the sum and
-    the largest of the moving counts; `worst` and `needed` as
+    the largest of the moving counts, how many exceed 1; `worst` and `needed` as
     `substep_counts` returns them (the rest is empty when `worst` >= 0).
     """
     n_periods, n_dampings = periods.shape[0], dampings.shape[0]
     per_period = np.ones(n_periods, dtype=np.int64)
     worst, needed = substep_counts(dt, periods, limit, most, per_period)
-    moving = 0
+    moving = split = 0
     smallest, largest, per_damping = most + 1, 0, 0
     for p in range(n_periods):
         if periods[p] > 0.0:
             moving += 1
+            split += per_period[p] > 1
             per_damping += per_period[p]
             smallest = min(smallest, per_period[p])
             largest = max(largest, per_period[p])
@@ -123,7 +124,7 @@ def spectrum_plan(periods, dampings, dt, limit, most):
     order = np.empty(n if worst < 0 else 0, dtype=np.int64)
     sorted_counts = np.empty(order.shape[0], dtype=np.int64)
     if worst >= 0:
-        return counts, order, sorted_counts, np.zeros(1, dtype=np.int64), 0, 0, worst, needed
+        return counts, order, sorted_counts, np.zeros(1, dtype=np.int64), 0, 0, 0, worst, needed
     for d in range(n_dampings):
         counts[d * n_periods:(d + 1) * n_periods] = per_period
     if n and smallest == largest:  # one count (no sub-steps anywhere, say): the grid order is sorted
@@ -146,7 +147,7 @@ def spectrum_plan(periods, dampings, dt, limit, most):
     for j in range(n):
         sorted_counts[j] = counts[order[j]]
     starts = _chunk_starts(sorted_counts, CHUNK)
-    return counts, order, sorted_counts, starts, per_damping * n_dampings, largest, -1, 0.0
+    return counts, order, sorted_counts, starts, per_damping * n_dampings, largest, split * n_dampings, -1, 0.0
 
 
 @njit(cache=True)

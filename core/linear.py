@@ -229,7 +229,7 @@ def elastic_spectrum(
     ratio = _check_ratio(max_step_ratio)
 
     dt = record.dt
-    counts, order, used, starts, total, largest, worst, needed = _kernels.spectrum_plan(
+    counts, order, used, starts, total, largest, split, worst, needed = _kernels.spectrum_plan(
         period_values, damping_values, dt, step_limit(resolved, ratio), MAX_SUBSTEPS
     )
     if worst >= 0:
@@ -256,7 +256,7 @@ def elastic_spectrum(
     shape = (damping_values.shape[0], period_values.shape[0])
     substeps = counts.reshape(shape)
     if largest > 1:
-        _warn_grid_substeps(dt, substeps, "oscillators", resolved, ratio)
+        _warn_grid_substeps(dt, substeps, "oscillators", resolved, ratio, counted=(split, largest))
     sd, sv, sa, psv, psa = _kernels.spectrum_values(found, order, period_values, shape[0], record.accel).reshape(
         (5, *shape)
     )
@@ -350,14 +350,18 @@ def _warn_substeps(period: float, dt: float, substeps: int, method: Method, rati
 
 
 def _warn_grid_substeps(dt: float, substeps: NDArray[np.int64], what: str, method: Method,
-                        ratio: float | None, stacklevel: int = 3) -> None:  # fmt: skip
-    """One SubstepWarning for a grid of `what` ("oscillators", "periods") if any was split."""
-    if substeps.max() > 1:
-        split = int(np.count_nonzero(substeps > 1))
+                        ratio: float | None, stacklevel: int = 3,
+                        counted: tuple[int, int] | None = None) -> None:  # fmt: skip
+    """One SubstepWarning for a grid of `what` ("oscillators", "periods") if any was split.
+
+    `counted` is (how many counts exceed 1, the largest count) when the caller has them.
+    """
+    split, largest = (int(np.count_nonzero(substeps > 1)), int(substeps.max())) if counted is None else counted
+    if largest > 1:
         _notices.warn(
             SubstepWarning(
                 f"record step {dt:g} s: {split} of {substeps.size} {what} sub-stepped, "
-                f"up to {substeps.max()} sub-steps (Δt/T <= {_limit_text(method, ratio)})"
+                f"up to {largest} sub-steps (Δt/T <= {_limit_text(method, ratio)})"
             ),
             stacklevel=stacklevel,
         )
