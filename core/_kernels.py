@@ -30,7 +30,7 @@ from ._jit import PART_THREADS, get_num_threads, njit
 
 #: Rows of a coefficient array (10, n_oscillators).
 N_COEFFICIENTS = 10
-#: Oscillators per parallel chunk: small enough for the chunk's work arrays
+#: Oscillators per parallel chunk: small enough for the chunk's work array
 #: (state, peaks and ten coefficient rows) to stay in the L1 cache, large
 #: enough to vectorise.
 CHUNK = 64
@@ -44,9 +44,10 @@ def _advance(a, j, u, v, p0, p1):
     return u1, v1
 
 
-# Rows of the per-chunk state array of `peaks`: state, then peaks; the map has an array of its own.
+# Rows of the per-chunk work array of `peaks`: state, peaks, then the map.
 _U, _V, _PU, _PV, _PA = 0, 1, 2, 3, 4
-_ROWS = 5
+_A0 = 5  # rows _A0 .. _A0 + 9 hold the ten coefficients
+_ROWS = _A0 + N_COEFFICIENTS
 
 
 def chunk_starts(substeps, size=CHUNK):
@@ -198,8 +199,9 @@ SERIAL_WORK = 2_000_000
 
 
 @njit(cache=True, inline="always")
-def _visit(w, a, lanes, pa0, pb0, pa1, pb1, pa2, pb2, pa3, pb3):
+def _visit(w, lanes, pa0, pb0, pa1, pb1, pa2, pb2, pa3, pb3):
     """Four sub-steps of every lane of a chunk (loads (pa, pb) of each sub-step)."""
+    a = w[_A0:, :]
     for j in range(lanes):
         u, v = w[_U, j], w[_V, j]
         c, k = a[8, j], a[9, j]
@@ -217,8 +219,9 @@ def _visit(w, a, lanes, pa0, pb0, pa1, pb1, pa2, pb2, pa3, pb3):
 
 
 @njit(cache=True, inline="always")
-def _single(w, a, lanes, pa, pb):
+def _single(w, lanes, pa, pb):
     """One sub-step of every lane of a chunk."""
+    a = w[_A0:, :]
     for j in range(lanes):
         u, v = _advance(a, j, w[_U, j], w[_V, j], pa, pb)
         w[_U, j], w[_V, j] = u, v
@@ -241,26 +244,15 @@ def _chunk(load, coef, substeps, starts, u0, v0, out, chunk):
     m = starts[chunk + 1] - lo
     lanes = _lanes(m)
     s = substeps[lo]
-    w = np.zeros((_ROWS, CHUNK))  # state and peaks
-    a = np.zeros((N_COEFFICIENTS, CHUNK))  # lanes m .. lanes - 1 keep a zero map: at rest, never read
+    w = np.zeros((_ROWS, CHUNK))  # lanes m .. lanes - 1 keep a zero map: at rest, never read
     for j in range(m):
         for r in range(N_COEFFICIENTS):
-            a[r, j] = coef[r, lo + j]
+            w[_A0 + r, j] = coef[r, lo + j]
         w[_U, j] = u0[lo + j]
         w[_V, j] = v0[lo + j]
         w[_PU, j] = abs(u0[lo + j])
         w[_PV, j] = abs(v0[lo + j])
-        w[_PA, j] = abs(a[8, j] * v0[lo + j] + a[9, j] * u0[lo + j])
-    _steps(load, w, a, lanes, s, n_steps)
-    for j in range(m):
-        out[0, lo + j] = w[_PU, j]
-        out[1, lo + j] = w[_PV, j]
-        out[2, lo + j] = w[_PA, j]
-
-
-@njit(cache=True, inline="always", fastmath=True)
-def _steps(load, w, a, lanes, s, n_steps):
-    """Every sub-step of the record for the `lanes` lanes of a chunk: state `w`, map `a`."""
+        w[_PA, j] = abs(w[_A0 + 8, j] * v0[lo + j] + w[_A0 + 9, j] * u0[lo + j])
     # the loads (pa, pb) of every sub-step in order, queued four at a time
     queue = np.empty((2, VISIT))
     queued = 0
@@ -272,11 +264,15 @@ def _steps(load, w, a, lanes, s, n_steps):
             queue[1, queued] = p0 + dp * (sub + 1)
             queued += 1
             if queued == VISIT:
-                _visit(w, a, lanes, queue[0, 0], queue[1, 0], queue[0, 1], queue[1, 1],
+                _visit(w, lanes, queue[0, 0], queue[1, 0], queue[0, 1], queue[1, 1],
                        queue[0, 2], queue[1, 2], queue[0, 3], queue[1, 3])  # fmt: skip
                 queued = 0
     for q in range(queued):
-        _single(w, a, lanes, queue[0, q], queue[1, q])
+        _single(w, lanes, queue[0, q], queue[1, q])
+    for j in range(m):
+        out[0, lo + j] = w[_PU, j]
+        out[1, lo + j] = w[_PV, j]
+        out[2, lo + j] = w[_PA, j]
 
 
 def balance(substeps, starts, parts):
@@ -324,10 +320,9 @@ def peaks(load, coef, substeps, starts, u0, v0, out, owner, part):
 
     The load is linear inside each record step, so sub-step m of s runs from
     p0 + (p1 - p0)·m/s to p0 + (p1 - p0)·(m + 1)/s. Oscillators of a chunk
-    are interleaved so the loop over them vectorises; their state and peaks
-    live in one small array and their maps in another (two allocations the
-    compiler knows apart: about 4 % faster on one thread than one shared
-    work array, thread CPU time, alternated). Each visit of that loop takes
+    are interleaved so the loop over them vectorises; all per-oscillator
+    values live in one work array whose row stride the compiler knows, so
+    it can prove the rows do not overlap. Each visit of that loop takes
     `VISIT` sub-steps with the state held in registers (the loads of those
     sub-steps queued first, whatever the sub-step count), so sub-stepped and
     plain chunks run the same loop, over a multiple of `LANES` lanes. The
