@@ -253,6 +253,19 @@ def _chunk(load, coef, substeps, starts, u0, v0, out, chunk):
         w[_PU, j] = abs(u0[lo + j])
         w[_PV, j] = abs(v0[lo + j])
         w[_PA, j] = abs(w[_A0 + 8, j] * v0[lo + j] + w[_A0 + 9, j] * u0[lo + j])
+    if lanes == LANES:  # one vector's worth (a worksheet cell's one period): a trip count the compiler sees
+        _steps(load, w, LANES, s, n_steps)
+    else:
+        _steps(load, w, lanes, s, n_steps)
+    for j in range(m):
+        out[0, lo + j] = w[_PU, j]
+        out[1, lo + j] = w[_PV, j]
+        out[2, lo + j] = w[_PA, j]
+
+
+@njit(cache=True, inline="always", fastmath=True)
+def _steps(load, w, lanes, s, n_steps):
+    """Every sub-step of the record for the `lanes` lanes of a chunk's work array `w`."""
     # the loads (pa, pb) of every sub-step in order, queued four at a time
     queue = np.empty((2, VISIT))
     queued = 0
@@ -269,10 +282,6 @@ def _chunk(load, coef, substeps, starts, u0, v0, out, chunk):
                 queued = 0
     for q in range(queued):
         _single(w, lanes, queue[0, q], queue[1, q])
-    for j in range(m):
-        out[0, lo + j] = w[_PU, j]
-        out[1, lo + j] = w[_PV, j]
-        out[2, lo + j] = w[_PA, j]
 
 
 def balance(substeps, starts, parts):
