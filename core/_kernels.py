@@ -106,7 +106,7 @@ def spectrum_plan(periods, dampings, dt, limit, most):
     oscillators (period > 0) stably sorted by count, their counts in that
     order, the chunk boundaries over them (``chunk_starts``), the sum and
     the largest of the moving counts, how many exceed 1; `worst` and `needed` as
-    `substep_counts` returns them (the rest is empty when `worst` >= 0).
+    `substep_counts` returns them (the rest is not to be used when `worst` >= 0).
     """
     n_periods, n_dampings = periods.shape[0], dampings.shape[0]
     per_period = np.ones(n_periods, dtype=np.int64)
@@ -116,18 +116,17 @@ def spectrum_plan(periods, dampings, dt, limit, most):
     for p in range(n_periods):
         if periods[p] > 0.0:
             moving += 1
-            split += per_period[p] > 1
+            if per_period[p] > 1:
+                split += 1
             per_damping += per_period[p]
             smallest = min(smallest, per_period[p])
             largest = max(largest, per_period[p])
-    n = moving * n_dampings
+    n = moving * n_dampings if worst < 0 else 0  # refused: nothing to sort
     counts = np.empty(n_periods * n_dampings, dtype=np.int64)
-    order = np.empty(n if worst < 0 else 0, dtype=np.int64)
-    sorted_counts = np.empty(order.shape[0], dtype=np.int64)
-    if worst >= 0:
-        return counts, order, sorted_counts, np.zeros(1, dtype=np.int64), 0, 0, 0, worst, needed
-    for d in range(n_dampings):
-        counts[d * n_periods:(d + 1) * n_periods] = per_period
+    order = np.empty(n, dtype=np.int64)
+    sorted_counts = np.empty(n, dtype=np.int64)
+    for f in range(counts.shape[0]):
+        counts[f] = per_period[f % n_periods]
     if n and smallest == largest:  # one count (no sub-steps anywhere, say): the grid order is sorted
         j = 0
         for f in range(counts.shape[0]):
@@ -148,7 +147,7 @@ def spectrum_plan(periods, dampings, dt, limit, most):
     for j in range(n):
         sorted_counts[j] = counts[order[j]]
     starts = _chunk_starts(sorted_counts, CHUNK)
-    return counts, order, sorted_counts, starts, per_damping * n_dampings, largest, split * n_dampings, -1, 0.0
+    return counts, order, sorted_counts, starts, per_damping * n_dampings, largest, split * n_dampings, worst, needed
 
 
 @njit(cache=True)
@@ -253,19 +252,6 @@ def _chunk(load, coef, substeps, starts, u0, v0, out, chunk):
         w[_PU, j] = abs(u0[lo + j])
         w[_PV, j] = abs(v0[lo + j])
         w[_PA, j] = abs(w[_A0 + 8, j] * v0[lo + j] + w[_A0 + 9, j] * u0[lo + j])
-    if lanes == LANES:  # one vector's worth (a worksheet cell's one period): a trip count the compiler sees
-        _steps(load, w, LANES, s, n_steps)
-    else:
-        _steps(load, w, lanes, s, n_steps)
-    for j in range(m):
-        out[0, lo + j] = w[_PU, j]
-        out[1, lo + j] = w[_PV, j]
-        out[2, lo + j] = w[_PA, j]
-
-
-@njit(cache=True, inline="always", fastmath=True)
-def _steps(load, w, lanes, s, n_steps):
-    """Every sub-step of the record for the `lanes` lanes of a chunk's work array `w`."""
     # the loads (pa, pb) of every sub-step in order, queued four at a time
     queue = np.empty((2, VISIT))
     queued = 0
@@ -282,6 +268,10 @@ def _steps(load, w, lanes, s, n_steps):
                 queued = 0
     for q in range(queued):
         _single(w, lanes, queue[0, q], queue[1, q])
+    for j in range(m):
+        out[0, lo + j] = w[_PU, j]
+        out[1, lo + j] = w[_PV, j]
+        out[2, lo + j] = w[_PA, j]
 
 
 def balance(substeps, starts, parts):
