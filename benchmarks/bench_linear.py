@@ -12,7 +12,9 @@ a 20,000-step invented record (dt = 0.01 s, seeded filtered noise).
 2. Periods 0.01-10 s: periods under 0.1 s are sub-stepped (up to 10
    sub-steps) and their peaks read at every sub-step; figures are given per
    record oscillator-step and per computed oscillator-sub-step.
-3. One oscillator end to end through `linear_response` (2,000 samples).
+3. One oscillator end to end through `linear_response` (2,000 samples); a
+   worksheet cell's one-period elastic_spectrum end to end beside its kernel
+   alone, and on a 2-sample record (the fixed cost of a call).
 4. One thread (numba.set_num_threads(1)): elastic_spectrum end to end
    against a tuned reference kernel written here (the same affine map, 64
    oscillators interleaved, four steps per visit with the state in
@@ -182,6 +184,25 @@ def first_call_seconds(cache_dir: str) -> float:
     return float(out.stdout.strip())
 
 
+def one_period(record: Record) -> None:
+    """A worksheet cell's call: elastic_spectrum of one period, end to end, beside its kernel alone."""
+    tiny = Record(record.accel[:2], dt=record.dt, unit="m/s2")
+    coef, used = _step_coefficients(record.dt, np.array([1.0]), np.array([0.05]), resolve_method("average"), 0.1)
+    starts, zeros, out, load = _kernels.chunk_starts(used), np.zeros(1), np.empty((3, 1)), -record.accel
+    repeat = 200
+    calls = {
+        "spectrum": lambda: [elastic_spectrum(record, [1.0], 0.05) for _ in range(repeat)],
+        "kernel": lambda: [_kernels.peaks_serial(load, coef, used, starts, zeros, zeros, out) for _ in range(repeat)],
+        "tiny": lambda: [elastic_spectrum(tiny, [1.0], 0.05) for _ in range(repeat)],
+    }
+    for call in calls.values():
+        call()
+    times = {label: seconds / repeat for label, seconds in alternated(calls, REPEATS).items()}
+    print(f"   elastic_spectrum, one period, {record.n:,} steps: {times['spectrum'] * 1e6:6.1f} us end to end, "
+          f"its kernel alone {times['kernel'] * 1e6:6.1f} us, the rest {(times['spectrum'] - times['kernel']) * 1e6:5.1f} us; "
+          f"on a 2-sample record (the fixed cost) {times['tiny'] * 1e6:5.1f} us")
+
+
 def small_calls(record: Record) -> None:
     """One oscillator end to end, and a small spectrum on one thread against the parallel kernel."""
     short = Record(record.accel[:2000], dt=record.dt, unit="m/s2")
@@ -190,6 +211,7 @@ def small_calls(record: Record) -> None:
     seconds = best_of(lambda: [linear_response(short, 1.0) for _ in range(repeat)], REPEATS) / repeat
     print(f"3. linear_response, one oscillator, 2,000 samples, end to end: {seconds * 1e6:6.1f} us "
           f"(target 30 us: ratio {seconds / 30e-6:4.2f})")
+    one_period(record)
     periods = period_grid(0.1, 10.0, 20)
     coef, used = _step_coefficients(short.dt, periods, np.full(20, 0.05), resolve_method("average"), 0.1)
     starts = _kernels.chunk_starts(used)

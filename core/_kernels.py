@@ -57,13 +57,128 @@ def chunk_starts(substeps, size=CHUNK):
     count, so a chunk's inner loop has one trip count. `substeps` must be
     sorted ascending.
     """
-    starts = [0]
+    return _chunk_starts(np.asarray(substeps, dtype=np.int64), size)
+
+
+@njit(cache=True)
+def _chunk_starts(substeps, size):
     n = substeps.shape[0]
-    while starts[-1] < n:
-        lo = starts[-1]
-        same = int(np.searchsorted(substeps, substeps[lo], side="right"))
-        starts.append(min(lo + size, same))
-    return np.array(starts, dtype=np.int64)
+    starts = np.empty(n + 1, dtype=np.int64)  # at most one chunk per oscillator
+    starts[0] = 0
+    count, lo = 1, 0
+    while lo < n:
+        same = lo + 1  # the first oscillator past lo with another count (sorted: the searchsorted right)
+        while same < n and substeps[same] == substeps[lo]:
+            same += 1
+        lo = min(lo + size, same)
+        starts[count] = lo
+        count += 1
+    return starts[:count].copy()
+
+
+@njit(cache=True)
+def substep_counts(dt, periods, limit, most, counts):
+    """Sub-steps s = ceil(dt / (limit·T)·(1 - 1e-12)), at least 1, of each period T > 0 into `counts`.
+
+    Periods <= 0 (rigid) take 1. Returns (index, needed): the first period
+    that needs the most sub-steps when that is more than `most`, else
+    (-1, 0.0); `counts` is then not filled. The rule of ``methods.substep_counts``.
+    """
+    worst, worst_needed = -1, 0.0
+    for p in range(periods.shape[0]):
+        if periods[p] > 0.0:
+            needed = np.ceil(dt / (limit * periods[p]) * (1.0 - 1e-12))
+            if needed > most and (worst < 0 or needed > worst_needed):
+                worst, worst_needed = p, needed
+            elif worst < 0:
+                counts[p] = max(needed, 1.0)
+        else:
+            counts[p] = 1
+    return worst, worst_needed
+
+
+@njit(cache=True)
+def spectrum_plan(periods, dampings, dt, limit, most):
+    """Sub-step counts and sorted order of the grid of a spectrum (oscillator f = d·n_periods + p).
+
+    Returns (counts, order, sorted_counts, starts, total, largest, split,
+    worst, needed): the count of each oscillator (1 when rigid), the moving
+    oscillators (period > 0) stably sorted by count, their counts in that
+    order, the chunk boundaries over them (``chunk_starts``), the sum and
+    the largest of the moving counts, how many exceed 1; `worst` and `needed` as
+    `substep_counts` returns them (the rest is not to be used when `worst` >= 0).
+    """
+    n_periods, n_dampings = periods.shape[0], dampings.shape[0]
+    per_period = np.ones(n_periods, dtype=np.int64)
+    worst, needed = substep_counts(dt, periods, limit, most, per_period)
+    moving = split = 0
+    smallest, largest, per_damping = most + 1, 0, 0
+    for p in range(n_periods):
+        if periods[p] > 0.0:
+            moving += 1
+            if per_period[p] > 1:
+                split += 1
+            per_damping += per_period[p]
+            smallest = min(smallest, per_period[p])
+            largest = max(largest, per_period[p])
+    n = moving * n_dampings if worst < 0 else 0  # refused: nothing to sort
+    counts = np.empty(n_periods * n_dampings, dtype=np.int64)
+    order = np.empty(n, dtype=np.int64)
+    sorted_counts = np.empty(n, dtype=np.int64)
+    for f in range(counts.shape[0]):
+        counts[f] = per_period[f % n_periods]
+    if n and smallest == largest:  # one count (no sub-steps anywhere, say): the grid order is sorted
+        j = 0
+        for f in range(counts.shape[0]):
+            if periods[f % n_periods] > 0.0:
+                order[j] = f
+                j += 1
+    elif n:  # a stable counting sort by sub-step count
+        first = np.zeros(largest + 2, dtype=np.int64)
+        for f in range(counts.shape[0]):
+            if periods[f % n_periods] > 0.0:
+                first[counts[f] + 1] += 1
+        for s in range(1, largest + 2):
+            first[s] += first[s - 1]
+        for f in range(counts.shape[0]):
+            if periods[f % n_periods] > 0.0:
+                order[first[counts[f]]] = f
+                first[counts[f]] += 1
+    for j in range(n):
+        sorted_counts[j] = counts[order[j]]
+    starts = _chunk_starts(sorted_counts, CHUNK)
+    return counts, order, sorted_counts, starts, per_damping * n_dampings, largest, split * n_dampings, worst, needed
+
+
+@njit(cache=True)
+def spectrum_values(found, order, periods, n_dampings, accel):
+    """(5, n_dampings·n_periods) SD, SV, SA, PSV = ω·SD, PSA = ω²·SD in grid order from the sorted peaks.
+
+    `found` (3, len(order)) are the kernels' peaks of the oscillators
+    `order` lists; a rigid oscillator (period 0) has SD = SV = PSV = 0 and
+    SA = PSA = max |ü_g| of `accel`.
+    """
+    n_periods = periods.shape[0]
+    n = n_periods * n_dampings
+    values = np.zeros((5, n))
+    if order.shape[0] < n:  # rigid oscillators: max|ü_g|, without a record-length |ü_g| temporary
+        high, low = accel[0], accel[0]
+        for i in range(1, accel.shape[0]):
+            high = max(high, accel[i])
+            low = min(low, accel[i])
+        peak = max(high, -low)
+        for f in range(n):
+            if not periods[f % n_periods] > 0.0:
+                values[2, f] = peak
+                values[4, f] = peak
+    for j in range(order.shape[0]):
+        f = order[j]
+        omega = 2.0 * np.pi / periods[f % n_periods]
+        sd = found[0, j]
+        values[0, f], values[1, f], values[2, f] = sd, found[1, j], found[2, j]
+        values[3, f] = omega * sd
+        values[4, f] = omega * omega * sd
+    return values
 
 
 #: Sub-steps each oscillator takes per visit of the chunk loop in `peaks`:
@@ -159,28 +274,29 @@ def _chunk(load, coef, substeps, starts, u0, v0, out, chunk):
         out[2, lo + j] = w[_PA, j]
 
 
-@njit(cache=True)
 def balance(substeps, starts, parts):
     """Share chunks among `parts` threads by work (lanes x sub-steps): the owner of each chunk.
 
     Longest first, each to the least loaded thread (Graham 1969), so the few
     heavy chunks of sub-stepped short periods, which sort last, do not all
     land on one thread as an even split of the chunk range would put them.
+    Plain Python and numpy: a spectrum has tens to hundreds of chunks, and a
+    compiled version cost about 2 s of numba compilation on a cold cache.
 
     References
     ----------
     Graham, R. L. (1969). Bounds on multiprocessing timing anomalies. SIAM
     Journal on Applied Mathematics, 17(2), 416-429.
     """
-    n_chunks = starts.shape[0] - 1
-    work = np.empty(n_chunks)
-    for chunk in range(n_chunks):
-        work[chunk] = _lanes(starts[chunk + 1] - starts[chunk]) * substeps[starts[chunk]]
+    sizes = np.diff(starts)
+    lanes = np.minimum(CHUNK, (sizes + LANES - 1) // LANES * LANES)
+    work = (lanes * substeps[starts[:-1]]).tolist()
+    n_chunks = len(work)
     owner = np.empty(n_chunks, dtype=np.int64)
     parts = max(1, min(parts, n_chunks))
-    load = np.zeros(parts)
-    for chunk in np.argsort(-work, kind="mergesort"):
-        part = np.argmin(load)
+    load = [0] * parts
+    for chunk in sorted(range(n_chunks), key=work.__getitem__, reverse=True):  # stable: ties keep chunk order
+        part = load.index(min(load))  # the first least loaded, as argmin
         owner[chunk] = part
         load[part] += work[chunk]
     return owner
@@ -221,9 +337,12 @@ def peaks_serial(load, coef, substeps, starts, u0, v0, out):
     peaks(load, coef, substeps, starts, u0, v0, out, np.zeros(starts.shape[0] - 1, np.int64), 0)
 
 
-def spectrum_peaks(load, coef, substeps, starts, u0, v0, out):
-    """`peaks` over chunks shared by `balance` among numba's thread count, or on this thread below `SERIAL_WORK`."""
-    work = (load.shape[0] - 1) * int(substeps.sum())
+def spectrum_peaks(load, coef, substeps, starts, u0, v0, out, total=None):
+    """`peaks` over chunks shared by `balance` among numba's thread count, or on this thread below `SERIAL_WORK`.
+
+    `total` is ``substeps.sum()`` when the caller has it.
+    """
+    work = (load.shape[0] - 1) * int(substeps.sum() if total is None else total)
     parts = 1 if work < SERIAL_WORK else get_num_threads()
     if parts == 1:
         peaks_serial(load, coef, substeps, starts, u0, v0, out)
@@ -233,28 +352,30 @@ def spectrum_peaks(load, coef, substeps, starts, u0, v0, out):
 
 
 @njit(cache=True)
-def history(load, coef, substeps, u0, v0, u, v, total, out):
+def history(load, coef, substeps, dt, u0, v0, time, u, v, total, out):
     """Histories of one oscillator at the samples, and its peaks read at every sub-step.
 
     Parameters
     ----------
-    load : (n_samples,) float64, p = -ü_g [m/s²]
-    coef : (10, 1) float64, the map of ONE sub-step (h = dt / substeps)
+    load : (n_samples,) float64, p = -ü_g [m/s²], or ü_g with `coef`'s load rows negated
+    coef : (10,) float64, the map of ONE sub-step (h = dt / substeps)
     substeps : int, sub-steps per record step (load linear in between)
+    dt : float, record step [s]
     u0, v0 : float, initial state
-    u, v, total : (n_samples,) float64, filled with the state and the total
-        acceleration ü + ü_g = -(c·v + k·u) at each sample
+    time, u, v, total : (n_samples,) float64, filled with the sample times
+        i·dt, the state and the total acceleration ü + ü_g = -(c·v + k·u)
     out : (6,) float64, filled with max |u|, max |v|, max |ü + ü_g| over
-        every sub-step, then the time of the first occurrence of each, in
-        record steps (multiply by dt for seconds)
+        every sub-step, then the time [s] of the first occurrence of each
 
     The peaks are kept with branch-free selects and their times as sub-step
-    counts, divided by `substeps` once at the end (same values as dividing
+    counts, turned into seconds once at the end (same values as dividing
     at every sub-step, without a division on the loop's path).
     """
     s = substeps
-    c, k = coef[8, 0], coef[9, 0]
+    a = coef.reshape((N_COEFFICIENTS, 1))
+    c, k = a[8, 0], a[9, 0]
     ui, vi = u0, v0
+    time[0] = 0.0
     u[0], v[0] = ui, vi
     total[0] = -(c * vi + k * ui)
     pu, pv, pa = abs(ui), abs(vi), abs(c * vi + k * ui)
@@ -265,7 +386,7 @@ def history(load, coef, substeps, u0, v0, u, v, total, out):
         dp = (load[i + 1] - p0) / s
         at = 0.0
         for sub in range(s):
-            ui, vi = _advance(coef, 0, ui, vi, p0 + dp * sub, p0 + dp * (sub + 1))
+            ui, vi = _advance(a, 0, ui, vi, p0 + dp * sub, p0 + dp * (sub + 1))
             step += 1
             au, av = abs(ui), abs(vi)
             at = c * vi + k * ui
@@ -276,7 +397,8 @@ def history(load, coef, substeps, u0, v0, u, v, total, out):
             pv = av if av > pv else pv
             ka = step if aa > pa else ka
             pa = aa if aa > pa else pa
+        time[i + 1] = (i + 1) * dt
         u[i + 1], v[i + 1] = ui, vi
         total[i + 1] = -at
     out[0], out[1], out[2] = pu, pv, pa
-    out[3], out[4], out[5] = ku / s, kv / s, ka / s
+    out[3], out[4], out[5] = ku / s * dt, kv / s * dt, ka / s * dt

@@ -32,8 +32,8 @@ from ._jit import njit
 def newmark_constants(h, beta, gamma):
     """(A, B1, B2, G, G1, G2) of a Newmark step of size `h` (module docstring); β > 0.
 
-    Works on floats (compiled, inside kernels) and, through ``.py_func``, on
-    numpy arrays of `h` (the linear map); the arithmetic is the same.
+    Compiled inside the kernels and the builders of the linear map
+    (``_coefficients``); the arithmetic is the same in both.
     """
     a_coef = 1.0 / (beta * h * h)
     b1 = 1.0 / (beta * h)
@@ -44,13 +44,15 @@ def newmark_constants(h, beta, gamma):
     return a_coef, b1, b2, g_coef, g1, g2
 
 
+@njit(cache=True, inline="always")
 def linear_step(constants, c, k, u0, v0, p0, p1):
     """One Newmark step of the linear oscillator ü + c·u̇ + k·u = p from its constants.
 
     The increment form of the module docstring with fs = k·u: a0 from
     equilibrium at the start, then d = (q - k·u0) / (A + c·G + k) with
     q = p1 + (B1·v0 + B2·a0) - c·(G1·v0 + G2·a0). Returns (u1, v1).
-    Works elementwise on numpy arrays.
+    Compiled on floats; ``.py_func`` runs the same arithmetic elementwise on
+    numpy arrays.
     """
     a_coef, b1, b2, g_coef, g1, g2 = constants
     a0 = p0 - c * v0 - k * u0

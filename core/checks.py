@@ -25,7 +25,7 @@ from numbers import Real
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from ._validate import as_float, as_vector, named, positive
+from ._validate import SMALL, as_array, as_float, as_vector, check_finite, named, positive
 from .budget import PERIOD_RANGE, LimitError
 from .defaults import HARDENING_RANGE
 from .methods import Method, resolve_method
@@ -199,7 +199,14 @@ def check_dampings(values: ArrayLike, label: str = "dampings") -> NDArray[np.flo
     >>> check_dampings([0.02, 0.05]).tolist()
     [0.02, 0.05]
     """
-    array = as_vector(values, label)
+    array = as_array(values, label)
+    if array.shape[0] <= SMALL:
+        ratios = array.tolist()
+        if all(0.0 <= ratio < 1.0 for ratio in ratios):  # each fine (NaN is not)
+            return array
+    elif bool(((array >= 0.0) & (array < 1.0)).all()):
+        return array
+    check_finite(array, label)
     for index, ratio in enumerate(array.tolist()):
         _damping_rule(ratio, named(label), f"index {index} holds {ratio!r}")
     return array
@@ -282,10 +289,14 @@ def check_periods(values: ArrayLike, label: str = "periods") -> NDArray[np.float
     >>> check_periods([0.0, 0.2]).tolist()
     [0.0, 0.2]
     """
-    array = as_vector(values, label)
+    array = as_array(values, label)
     low, high = PERIOD_RANGE
-    if bool((((array >= low) & (array <= high)) | (array == 0.0)).all()):  # every period fine (NaN is not)
+    if array.shape[0] <= SMALL:
+        if all(low <= period <= high or period == 0.0 for period in array.tolist()):  # each fine (NaN is not)
+            return array
+    elif bool((((array >= low) & (array <= high)) | (array == 0.0)).all()):
         return array
+    check_finite(array, label)
     negative = np.flatnonzero(array < 0.0)
     if negative.size:
         index = int(negative[0])

@@ -18,7 +18,7 @@ from .checks import (
     check_periods,
 )
 from .defaults import DEFAULT_DAMPING, DEFAULT_STEP_RATIO
-from .methods import Method, substep_counts
+from .methods import MAX_SUBSTEPS, Method, _too_many, step_limit, substep_count, substep_counts
 from .record import Record
 from .results import ElasticSpectrum, LinearResponse
 
@@ -123,11 +123,10 @@ def linear_response(
     u0 = _budget.check_state(_validate.as_float(initial_displacement, "initial_displacement"), "initial_displacement", "m")
     v0 = _budget.check_state(_validate.as_float(initial_velocity, "initial_velocity"), "initial_velocity", "m/s")
 
-    time = record.time
-    load = -record.accel
     if period == 0.0:
         if u0 != 0.0 or v0 != 0.0:
             raise ValueError("a rigid oscillator (`period` 0) cannot start with a displacement or velocity")
+        time = record.time
         zeros = np.zeros(record.n)
         total = record.accel.copy()
         index = int(np.argmax(np.abs(total)))
@@ -141,22 +140,27 @@ def linear_response(
             pseudo_velocity=0.0, pseudo_acceleration=peak,
         )  # fmt: skip
 
-    coef, substeps = _step_coefficients(record.dt, np.array([period]), np.array([damping]), resolved, ratio)
-    _budget.check_work(record.n * float(substeps[0]), f"a response of {record.n} samples x {int(substeps[0])} sub-steps")
-    _warn_substeps(period, record.dt, int(substeps[0]), resolved, ratio)
-    displacement = np.empty(record.n)
-    velocity = np.empty(record.n)
-    total = np.empty(record.n)
-    found = np.empty(6)
-    _kernels.history(load, coef, int(substeps[0]), u0, v0, displacement, velocity, total, found)
-    sd, sv, sa = (float(value) for value in found[:3])
-    when = [float(steps * record.dt) for steps in found[3:]]
+    dt = record.dt
+    substeps = substep_count(dt, period, resolved, ratio)
+    n = record.n
+    if not n * float(substeps) <= _budget.current_budget():
+        _budget.check_work(n * float(substeps), f"a response of {n} samples x {substeps} sub-steps")
+    _warn_substeps(period, dt, substeps, resolved, ratio)
     omega = 2.0 * math.pi / period
+    # the kernel is handed ü_g itself with the map's load rows negated (see elastic_spectrum)
+    if resolved.is_newmark:
+        coef = _coefficients.newmark_one(omega, damping, dt / substeps, resolved.beta, resolved.gamma, -1.0)
+    else:
+        coef = _coefficients.exact(omega, damping, dt / substeps, -1.0)[:, 0]
+    time, displacement, velocity, total = np.empty(n), np.empty(n), np.empty(n), np.empty(n)
+    found = np.empty(6)
+    _kernels.history(record.accel, coef, substeps, dt, u0, v0, time, displacement, velocity, total, found)
+    sd, sv, sa, when_d, when_v, when_a = found.tolist()
     return LinearResponse(
-        period=period, damping=damping, method=resolved, dt=record.dt, substeps=int(substeps[0]),
+        period=period, damping=damping, method=resolved, dt=dt, substeps=substeps,
         time=time, displacement=displacement, velocity=velocity, total_acceleration=total,
         peak_displacement=sd, peak_velocity=sv, peak_total_acceleration=sa,
-        time_of_peak_displacement=when[0], time_of_peak_velocity=when[1], time_of_peak_total_acceleration=when[2],
+        time_of_peak_displacement=when_d, time_of_peak_velocity=when_v, time_of_peak_total_acceleration=when_a,
         pseudo_velocity=omega * sd, pseudo_acceleration=omega * omega * sd,
     )  # fmt: skip
 
@@ -224,44 +228,41 @@ def elastic_spectrum(
     resolved = check_method(method)
     ratio = _check_ratio(max_step_ratio)
 
-    grid_z, grid_t = np.meshgrid(damping_values, period_values, indexing="ij")
-    flat_t, flat_z = grid_t.ravel(), grid_z.ravel()
-    moving = flat_t > 0.0
-    peaks = np.zeros((3, flat_t.size))
-    substeps = np.ones(flat_t.size, dtype=np.int64)
-    if moving.any():
-        coef, used = _step_coefficients(record.dt, flat_t[moving], flat_z[moving], resolved, ratio)
-        substeps[moving] = used
-        _budget.check_work(
-            record.n * float(used.sum()),
-            f"a spectrum of {record.n} samples x {used.size} oscillators x {used.mean():.3g} sub-steps on average",
-        )
-        order = np.argsort(used, kind="stable")  # chunks of equal sub-step count
-        found = np.empty((3, order.size))
-        zeros = np.zeros(order.size)
-        starts = _kernels.chunk_starts(used[order])
+    dt = record.dt
+    counts, order, used, starts, total, largest, split, worst, needed = _kernels.spectrum_plan(
+        period_values, damping_values, dt, step_limit(resolved, ratio), MAX_SUBSTEPS
+    )
+    if worst >= 0:
+        raise _too_many(dt, float(period_values[worst]), needed, step_limit(resolved, ratio), resolved)
+    found = np.empty((3, order.shape[0]))
+    if order.shape[0]:
+        n = record.n
+        if not n * float(total) <= _budget.current_budget():
+            _budget.check_work(
+                n * float(total),
+                f"a spectrum of {n} samples x {used.size} oscillators x {used.mean():.3g} sub-steps on average",
+            )
         # The kernels step the load p = -ü_g. Negating the load rows A4..A7 of the map instead and
         # handing them ü_g itself saves a record-length copy and changes no bit: negation is exact
         # and rounding is symmetric about zero, so every product, sum and interpolated load of the
         # recurrence comes out exactly negated and the state (u, v) exactly the same.
-        sorted_coef = np.ascontiguousarray(coef[:, order])
-        sorted_coef[4:8] *= -1.0
-        _kernels.spectrum_peaks(record.accel, sorted_coef, used[order], starts, zeros, zeros, found)
-        unsorted = np.empty_like(found)
-        unsorted[:, order] = found
-        peaks[:, moving] = unsorted
-    if not moving.all():  # rigid oscillators: max|ü_g|, read without a record-length |ü_g| temporary
-        peaks[2, ~moving] = max(float(record.accel.max()), -float(record.accel.min()))
-    _warn_grid_substeps(record.dt, substeps, "oscillators", resolved, ratio)
-    shape = grid_t.shape
-    omega = np.zeros(flat_t.size)
-    omega[moving] = 2.0 * np.pi / flat_t[moving]
-    sd, sv, sa = (row.reshape(shape) for row in peaks)
-    psv = (omega * peaks[0]).reshape(shape)
-    psa = np.where(moving, omega * omega * peaks[0], peaks[2]).reshape(shape)
+        if resolved.is_newmark:
+            coef = _coefficients.newmark_sorted(order, period_values, damping_values, counts, dt,
+                                                resolved.beta, resolved.gamma, -1.0)  # fmt: skip
+        else:
+            coef = _coefficients.exact_sorted(order, period_values, damping_values, counts, dt, -1.0)
+        zeros = np.zeros(order.shape[0])
+        _kernels.spectrum_peaks(record.accel, coef, used, starts, zeros, zeros, found, total)
+    shape = (damping_values.shape[0], period_values.shape[0])
+    substeps = counts.reshape(shape)
+    if largest > 1:
+        _warn_grid_substeps(dt, substeps, "oscillators", resolved, ratio, counted=(split, largest))
+    sd, sv, sa, psv, psa = _kernels.spectrum_values(found, order, period_values, shape[0], record.accel).reshape(
+        (5, *shape)
+    )
     return ElasticSpectrum(
         periods=period_values, dampings=damping_values, sd=sd, sv=sv, sa=sa, psv=psv, psa=psa,
-        substeps=substeps.reshape(shape), method=resolved, dt=record.dt,
+        substeps=substeps, method=resolved, dt=dt,
         max_step_ratio=math.nan if ratio is None else ratio,
     )  # fmt: skip
 
@@ -349,14 +350,18 @@ def _warn_substeps(period: float, dt: float, substeps: int, method: Method, rati
 
 
 def _warn_grid_substeps(dt: float, substeps: NDArray[np.int64], what: str, method: Method,
-                        ratio: float | None, stacklevel: int = 3) -> None:  # fmt: skip
-    """One SubstepWarning for a grid of `what` ("oscillators", "periods") if any was split."""
-    if substeps.max() > 1:
-        split = int(np.count_nonzero(substeps > 1))
+                        ratio: float | None, stacklevel: int = 3,
+                        counted: tuple[int, int] | None = None) -> None:  # fmt: skip
+    """One SubstepWarning for a grid of `what` ("oscillators", "periods") if any was split.
+
+    `counted` is (how many counts exceed 1, the largest count) when the caller has them.
+    """
+    split, largest = (int(np.count_nonzero(substeps > 1)), int(substeps.max())) if counted is None else counted
+    if largest > 1:
         _notices.warn(
             SubstepWarning(
                 f"record step {dt:g} s: {split} of {substeps.size} {what} sub-stepped, "
-                f"up to {substeps.max()} sub-steps (Δt/T <= {_limit_text(method, ratio)})"
+                f"up to {largest} sub-steps (Δt/T <= {_limit_text(method, ratio)})"
             ),
             stacklevel=stacklevel,
         )
@@ -367,9 +372,6 @@ def _step_coefficients(
 ) -> tuple[NDArray[np.float64], NDArray[np.int64]]:
     """Map coefficients (10, n) of ONE sub-step h = dt/s, and the sub-step counts s."""
     substeps = substep_counts(dt, periods, method, ratio)
-    if periods.size == 1 and method.is_newmark:  # one oscillator: the same step on floats, no array overhead
-        one = 2.0 * math.pi / float(periods[0])
-        return _coefficients.newmark_one(one, float(dampings[0]), dt / int(substeps[0]), method.beta, method.gamma), substeps
     omega = 2.0 * np.pi / periods
     step = dt / substeps
     if not method.is_newmark:

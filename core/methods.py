@@ -18,7 +18,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from . import _validate
+from . import _kernels, _validate
 from ._coefficients import stability_limit
 
 __all__ = [
@@ -196,27 +196,45 @@ def substep_counts(
     """
     periods = np.asarray(periods, dtype=np.float64)
     counts = np.ones(periods.shape, dtype=np.int64)
-    limit = min(math.inf if max_step_ratio is None else max_step_ratio, method.stability_limit)
+    limit = step_limit(method, max_step_ratio)
     if math.isinf(limit):
         return counts
-    # 1e-12 keeps a ratio that is exactly at the limit from rounding up to one more step
-    if periods.size == 1 and float(periods.flat[0]) > 0.0:  # one oscillator: the same rule on floats
-        one = math.ceil(dt / (limit * float(periods.flat[0])) * (1.0 - 1e-12))
-        if one <= MAX_SUBSTEPS:
-            counts.flat[0] = max(one, 1)
-            return counts
-    moving = periods > 0.0
-    needed = np.ceil(dt / (limit * periods[moving]) * (1.0 - 1e-12))
-    if needed.size and needed.max() > MAX_SUBSTEPS:
-        index = int(np.flatnonzero(moving)[np.argmax(needed)])
-        from .budget import LimitError  # budget builds on numpy only; imported here to keep methods first
-
-        rigid = "an oscillator this stiff moves with the ground: use period 0 (rigid, PSA = PGA)"
-        raise LimitError(
-            f"period {float(periods.flat[index]):g} s would need {needed.max():.3g} sub-steps "
-            f"of the {dt:g} s record step to keep Δt/T <= {limit:.4g}; more than {MAX_SUBSTEPS}",
-            rigid + ("" if method.stability_limit < math.inf else " or a larger `max_step_ratio`"),
-            rigid,
-        )
-    counts[moving] = np.maximum(needed, 1).astype(np.int64)
+    if periods.size == 1:  # one oscillator: the same rule on floats
+        counts.flat[0] = substep_count(dt, float(periods.flat[0]), method, max_step_ratio, limit)
+        return counts
+    worst, needed = _kernels.substep_counts(float(dt), periods.reshape(-1), limit, MAX_SUBSTEPS, counts.reshape(-1))
+    if worst >= 0:
+        raise _too_many(dt, float(periods.flat[worst]), needed, limit, method)
     return counts
+
+
+def step_limit(method: Method, max_step_ratio: float | None) -> float:
+    """The largest h/T in force: `max_step_ratio` (None: no limit) or the method's stability limit."""
+    return min(math.inf if max_step_ratio is None else max_step_ratio, method.stability_limit)
+
+
+def substep_count(dt: float, period: float, method: Method, max_step_ratio: float | None,
+                  limit: float | None = None) -> int:  # fmt: skip
+    """`substep_counts` of one period, on floats (`limit` is `step_limit`, when the caller has it)."""
+    if limit is None:
+        limit = step_limit(method, max_step_ratio)
+    if math.isinf(limit) or not period > 0.0:
+        return 1
+    # 1e-12 keeps a ratio that is exactly at the limit from rounding up to one more step
+    needed = math.ceil(dt / (limit * period) * (1.0 - 1e-12))
+    if needed > MAX_SUBSTEPS:
+        raise _too_many(dt, period, float(needed), limit, method)
+    return max(needed, 1)
+
+
+def _too_many(dt: float, period: float, needed: float, limit: float, method: Method) -> Exception:
+    """The refusal of a period that would need more than `MAX_SUBSTEPS` sub-steps."""
+    from .budget import LimitError  # budget builds on numpy only; imported here to keep methods first
+
+    rigid = "an oscillator this stiff moves with the ground: use period 0 (rigid, PSA = PGA)"
+    return LimitError(
+        f"period {period:g} s would need {needed:.3g} sub-steps "
+        f"of the {dt:g} s record step to keep Δt/T <= {limit:.4g}; more than {MAX_SUBSTEPS}",
+        rigid + ("" if method.stability_limit < math.inf else " or a larger `max_step_ratio`"),
+        rigid,
+    )

@@ -147,3 +147,26 @@ def test_defaults_have_one_home():
     assert inspect.signature(linear_response).parameters["damping"].default == defaults.DEFAULT_DAMPING
     tolerance = inspect.signature(inelastic_response).parameters["tolerance"].default
     assert tolerance == defaults.DEFAULT_TOLERANCE == 1e-9
+
+
+def test_long_vectors_name_the_index_as_short_ones_do():
+    """Past the short-input path (more than 16 entries) the same rules name the same index, in the same order."""
+    dampings = np.full(30, 0.05)
+    dampings[18] = 20.0
+    with pytest.raises(ValueError, match=r"`dampings` .*; index 18 holds 20.0; 20 looks like a percentage: enter 0.2"):
+        check_dampings(dampings)
+    periods = np.linspace(0.1, 3.0, 40)
+    periods[25], periods[31] = -1.0, np.nan
+    with pytest.raises(ValueError, match=r"`periods` must be finite; index 31 holds nan$"):  # finiteness is checked first
+        check_periods(periods)
+    periods[31] = 1e7
+    with pytest.raises(ValueError, match=r"`periods` must be >= 0 s; index 25 holds -1.0"):
+        check_periods(periods)
+    periods[25] = 0.5
+    with pytest.raises(ValueError, match=r"`periods` must be 0 \(rigid\) or lie in .*; index 31 holds 10000000.0"):
+        check_periods(periods)
+    for size in (3, 30):  # both paths
+        with pytest.raises(ValueError, match=rf"`dampings` must be finite; index 1 holds inf \({size - 1} non-finite"):
+            check_dampings([0.05] + [np.inf] * (size - 1))
+        assert_allclose(check_periods(np.zeros(size)), np.zeros(size), rtol=0)  # rigid periods pass
+        assert_allclose(check_dampings(np.full(size, 0.999)), np.full(size, 0.999), rtol=0)

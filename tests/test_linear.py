@@ -229,11 +229,11 @@ def test_linear_acceleration_diverges_past_stability_limit_without_substeps():
     coef = _coefficients.newmark(np.array([omega]), np.array([0.0]), 0.6, 1.0 / 6.0, 0.5)
     n = 200
     u, v = np.empty(n), np.empty(n)
-    _kernels.history(np.zeros(n), coef, 1, 1.0, 0.0, u, v, np.empty(n), np.empty(6))
+    _kernels.history(np.zeros(n), coef[:, 0], 1, 0.6, 1.0, 0.0, np.empty(n), u, v, np.empty(n), np.empty(6))
     assert np.max(np.abs(u)) > 1e6  # spectral radius > 1: geometric growth
     # just inside the limit (Δt/T = 0.55 < 0.5513) it stays bounded by its initial energy scale
     coef = _coefficients.newmark(np.array([omega]), np.array([0.0]), 0.55, 1.0 / 6.0, 0.5)
-    _kernels.history(np.zeros(n), coef, 1, 1.0, 0.0, u, v, np.empty(n), np.empty(6))
+    _kernels.history(np.zeros(n), coef[:, 0], 1, 0.55, 1.0, 0.0, np.empty(n), u, v, np.empty(n), np.empty(6))
     assert np.max(np.abs(u)) < 10.0
 
 
@@ -536,3 +536,80 @@ def test_spectrum_on_the_record_itself_equals_the_kernel_on_the_negated_load(cou
     reference[:, order] = found
     for row, name in enumerate(("sd", "sv", "sa")):
         assert np.array_equal(getattr(spectrum, name)[0], reference[row])  # exact: no tolerance
+
+
+# --- the compiled plan of a spectrum ------------------------------------------
+
+
+def _former_chunk_starts(substeps, size):
+    """The chunk boundaries as first written: np.searchsorted from each chunk's first oscillator."""
+    starts = [0]
+    while starts[-1] < substeps.size:
+        lo = starts[-1]
+        starts.append(min(lo + size, int(np.searchsorted(substeps, substeps[lo], side="right"))))
+    return starts
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2])
+def test_spectrum_plan_sorts_like_numpys_stable_sort(seed):
+    """The plan's order is numpy's stable argsort of the moving oscillators' counts; its chunks follow searchsorted."""
+    from groundstep.core import _kernels
+    from groundstep.core.methods import MAX_SUBSTEPS, resolve_method, substep_counts
+
+    rng = np.random.default_rng(seed)
+    periods = rng.uniform(0.002, 3.0, 150)
+    periods[rng.random(150) < 0.1] = 0.0  # rigid oscillators are left out of the order
+    dampings = np.array([0.02, 0.05, 0.1])
+    method = resolve_method("average")
+    counts, order, used, starts, total, largest, split, worst, _ = _kernels.spectrum_plan(
+        periods, dampings, 0.01, 0.1, MAX_SUBSTEPS
+    )
+    # reference: numpy's meshgrid of the grid, methods.substep_counts and a stable argsort
+    flat = np.meshgrid(dampings, periods, indexing="ij")[1].ravel()
+    expected = substep_counts(0.01, flat, method, 0.1)
+    moving = np.flatnonzero(flat > 0.0)
+    np.testing.assert_array_equal(counts, expected)
+    np.testing.assert_array_equal(order, moving[np.argsort(expected[moving], kind="stable")])
+    np.testing.assert_array_equal(used, expected[order])
+    np.testing.assert_array_equal(starts, _former_chunk_starts(used, _kernels.CHUNK))
+    assert (worst, total, largest, split) == (-1, expected[moving].sum(), expected.max(), np.count_nonzero(expected > 1))
+    for size in (1, 5, 64):
+        np.testing.assert_array_equal(_kernels.chunk_starts(used, size), _former_chunk_starts(used, size))
+
+
+@pytest.mark.parametrize("method", ["average", "linear", "exact", (0.3, 0.6)])
+def test_sorted_maps_are_the_grid_maps_in_plan_order_with_load_rows_negated(method):
+    """The spectrum's maps, built in sorted order, are `newmark`/`exact` of the same oscillators, load rows negated."""
+    from groundstep.core import _coefficients, _kernels
+    from groundstep.core.methods import MAX_SUBSTEPS, resolve_method, step_limit
+
+    resolved = resolve_method(method)
+    periods = np.concatenate([[0.0], np.geomspace(0.003, 20.0, 60)])
+    dampings = np.array([0.0, 0.05, 0.5])
+    counts, order, *_ = _kernels.spectrum_plan(periods, dampings, 0.02, step_limit(resolved, 0.1), MAX_SUBSTEPS)
+    grid_t = np.tile(periods, dampings.size)[order]
+    grid_z = np.repeat(dampings, periods.size)[order]
+    omega, h = 2.0 * np.pi / grid_t, 0.02 / counts[order]
+    if resolved.is_newmark:
+        reference = _coefficients.newmark(omega, grid_z, h, resolved.beta, resolved.gamma)
+        built = _coefficients.newmark_sorted(order, periods, dampings, counts, 0.02, resolved.beta, resolved.gamma, -1.0)
+    else:
+        reference = _coefficients.exact(omega, grid_z, h)
+        built = _coefficients.exact_sorted(order, periods, dampings, counts, 0.02, -1.0)
+    reference[4:8] *= -1.0  # negation is exact
+    assert np.array_equal(built.view(np.uint64), reference.view(np.uint64))  # bit for bit, signs of zeros included
+
+
+def test_history_times_are_the_sample_times_of_its_peaks():
+    """Without sub-steps the peaks are read at the samples: each peak time is the time of numpy's argmax of |history|."""
+    record = _random_record(21, n=3000)
+    result = linear_response(record, 1.3, 0.03)
+    np.testing.assert_array_equal(result.time, np.arange(record.n) * record.dt)  # reference: numpy's sample times
+    for history, when, peak in (
+        (result.displacement, result.time_of_peak_displacement, result.peak_displacement),
+        (result.velocity, result.time_of_peak_velocity, result.peak_velocity),
+        (result.total_acceleration, result.time_of_peak_total_acceleration, result.peak_total_acceleration),
+    ):
+        index = int(np.argmax(np.abs(history)))  # the first largest, as the kernel keeps it
+        assert when == result.time[index]
+        assert peak == abs(history[index])
