@@ -157,10 +157,9 @@ class Solver:
             return np.zeros(columns.size, dtype=np.int64)
         _, reach, residual = self._lead_in()
         fyr = (1.0 - self.alpha) * fy
-        # both rows are non-decreasing, so a count of safe blocks is the index of the first unsafe one
-        by_reach = np.sum(reach[columns] < fyr[:, None], axis=1)
-        by_residual = np.sum(residual[columns] <= accepted[:, None], axis=1)
-        return np.minimum(by_reach, by_residual).astype(np.int64)
+        blocks = np.empty(columns.size, dtype=np.int64)
+        _kernels.safe_blocks(reach, residual, columns, fyr, accepted, blocks)
+        return blocks
 
     def _robust_peak(self, period, k, c, fy, substeps, accepted):
         n = self.record.n

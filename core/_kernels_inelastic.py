@@ -468,3 +468,25 @@ def elastic_trace(load, dt, beta, gamma, hardening, k, c, substeps, starts, stri
                         top = _larger(top, abs(u1))
                 reach[o, b] = worst_reach
                 residual[o, b] = worst_residual
+
+
+@njit(cache=True)
+def safe_blocks(reach, residual, columns, fyr, accepted, blocks):
+    """Leading blocks of `elastic_trace` in which each lane stays on the elastic run.
+
+    `reach` and `residual` are (n_osc, n_blocks), each row non-decreasing
+    (cumulative maxima, `reach` already scaled by 1 + 1e-12); lane j (row
+    `columns[j]`) is safe in block b while reach < fyr[j] and residual <=
+    accepted[j]. blocks[j] is the first block where either fails (binary search).
+    """
+    n_blocks = reach.shape[1]
+    for j in range(columns.shape[0]):
+        row = columns[j]
+        lo, hi = 0, n_blocks
+        while lo < hi:
+            mid = (lo + hi) // 2
+            if reach[row, mid] < fyr[j] and residual[row, mid] <= accepted[j]:
+                lo = mid + 1
+            else:
+                hi = mid
+        blocks[j] = lo
