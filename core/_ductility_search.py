@@ -112,7 +112,12 @@ class Solver:
         if self.stats is not None:
             self.stats["kernel_seconds"] = self.stats.get("kernel_seconds", 0.0) + time.perf_counter() - began
             self.stats["oscillator_steps"] = self.stats.get("oscillator_steps", 0) + int(work.sum())
-        for lane in np.flatnonzero(failed):  # rare: repeat with step splitting
+        # rare: repeat with step splitting, in the order of lanes sorted by sub-steps alone (the
+        # order the kernel ran them before the lead-in), so the first failure reported is the same
+        place = np.empty(columns.size, dtype=np.int64)
+        place[order] = np.arange(columns.size)
+        by_substeps = place[np.argsort(self.substeps[columns[place]], kind="stable")]
+        for lane in by_substeps[failed[by_substeps] != 0.0]:
             peak[lane] = self._robust_peak(
                 self.periods[columns[lane]], k[lane], c[lane], fy[lane], substeps[lane], accepted[lane]
             )
