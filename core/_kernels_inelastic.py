@@ -287,7 +287,7 @@ def _pass(w, lanes, src, dst, pe, constants):
     return open_lanes
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True)
 def _more_iterations(w, lanes, src, dst, pe, constants, max_iter):
     """Lanes whose first Newton iterate was not accepted: the step again by `_newton`, alone.
 
@@ -349,12 +349,9 @@ def _chunk(load, dt, beta, gamma, hardening, k, c, fy, tol, substeps, starts, fi
         dp = (load[i + 1] - p0) / s
         for sub in range(s):
             pe = p0 + dp * (sub + 1)
-            if in_b:
-                if _pass(w, lanes, _SET_B, _SET_A, pe, constants) > 0:
-                    _more_iterations(w, lanes, _SET_B, _SET_A, pe, constants, max_iter)
-            else:
-                if _pass(w, lanes, _SET_A, _SET_B, pe, constants) > 0:
-                    _more_iterations(w, lanes, _SET_A, _SET_B, pe, constants, max_iter)
+            src, dst = (_SET_B, _SET_A) if in_b else (_SET_A, _SET_B)
+            if _pass(w, lanes, src, dst, pe, constants) > 0:
+                _more_iterations(w, lanes, src, dst, pe, constants, max_iter)
             in_b = not in_b
     now = _SET_B if in_b else _SET_A
     for j in range(m):
