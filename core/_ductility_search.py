@@ -5,6 +5,17 @@ response reaches μ: a grid stage over ln R from R = 1 upward finds the first
 bracket, then regula falsi with the Illinois modification (Dowell & Jarratt
 1971) refines every bracket at once. Ductility of many (period, strength)
 lanes comes from one compiled kernel call per pass.
+
+Elastic lead-in: until an oscillator first leaves its elastic range its
+history is the elastic one, whatever its strength. One elastic run per
+period (``_kernels_inelastic.elastic_trace``, the operations of the yielding
+kernel's elastic branch) keeps its state every few record steps and, per
+block of steps, how far the trial force came to the bounding lines and the
+largest first residual; each run then starts at the last checkpoint before
+the first block where its strength could yield or need a second Newton
+iterate (with a 1e-12 relative margin for the rounding of the bounding
+lines). The peaks are bit for bit those of runs from rest
+(tests/test_ductility_search.py).
 """
 
 from __future__ import annotations

@@ -32,7 +32,9 @@ G2 = h·(1 - γ/(2β)) come from ``_newmark.newmark_constants``, the same
 function the linear map is built from (``_coefficients.newmark``).
 ``_predict``, ``_spring`` and ``_step_constants`` are that recurrence; both
 kernels here (one history with energies and step sub-division, many peaks
-interleaved so the loop over oscillators vectorises) call them.
+interleaved so the loop over oscillators vectorises) call them, and
+``elastic_trace`` runs their elastic branch. None is compiled with
+fast-math, so the same operations give the same bits in all three.
 """
 
 from __future__ import annotations
@@ -384,13 +386,17 @@ def peaks(load, dt, beta, gamma, hardening, k, c, fy, tol, substeps, starts, fir
     owner : (n_chunks,) the thread of each chunk; part : the thread this call is
 
     The oscillators of a chunk are interleaved: each sub-step is one pass
-    over the chunk (the loop over oscillators vectorises) that commits every
-    lane as if its first Newton iterate were its root, which it is unless
-    the lane changed branch; if any lane did not converge, more passes move
-    only those lanes (`_iterate`). So a lane's result is the same whichever
-    chunk it runs in. Compiled without fast-math, so `elastic_trace`, which
+    over the chunk (`_pass`; the loop over oscillators vectorises) that
+    takes every lane's first Newton iterate, its root unless the lane
+    changes branch; the few lanes whose iterate is not accepted are redone
+    alone by `_newton` (`_more_iterations`). Each lane's iterates are those
+    of `_newton` for that oscillator alone, so its result does not depend on
+    the chunk it runs in, and equals `history`'s peak. Compiled without
+    fast-math (no contraction or reassociation), so `elastic_trace`, which
     runs the same operations, reproduces the elastic lead-in bit for bit.
-    The function holds no GIL: the caller runs its parts on threads.
+    The function holds no GIL: the caller runs its parts on
+    `_jit.PART_THREADS` (a ``parallel=True`` kernel costs numba's parallel
+    compiler more on a cold cache).
     """
     for chunk in range(starts.shape[0] - 1):
         if owner[chunk] == part:
