@@ -41,11 +41,14 @@ from __future__ import annotations
 
 import numpy as np
 
+from numba.cpython.unsafe.numbers import trailing_zeros
+
 from ._jit import njit
 from ._newmark import newmark_constants
 
-#: Oscillators per parallel chunk (as in ``_kernels.py``): two dozen state
-#: and constant vectors of this length stay in the L1 cache and vectorise.
+#: Oscillators per chunk (as in ``_kernels.py``): two dozen state and
+#: constant vectors of this length stay in the L1 cache and vectorise. At
+#: most 64: `peaks` keeps a pass's open lanes as the bits of one int64.
 CHUNK = 64
 #: Length of the `info` array filled by `history`; indices below.
 INFO_SIZE = 10
@@ -231,9 +234,9 @@ def history(load, dt, substeps, k, c, fy, hardening, beta, gamma, tol, max_iter,
 # reads one and writes the other), then flags and constants.
 _U, _V, _A, _F, _BR, _PEAK = range(6)  # offsets inside a set of state
 _SET_A, _SET_B = 0, 6
-_BAD, _OPEN = 12, 13
-_K, _HK, _FYR, _M_EFF, _INV_EL, _INV_PL, _TOL, _C = range(14, 22)
-_ROWS = 22
+_BAD = 12
+_K, _HK, _FYR, _M_EFF, _INV_EL, _INV_PL, _TOL, _C = range(13, 21)
+_ROWS = 21
 #: A chunk's oscillator loop runs over a multiple of this many lanes (padding
 #: repeats the chunk's last oscillator), so no lane falls into the loop's
 #: scalar remainder.
@@ -256,11 +259,12 @@ def _larger(a, b):
 
 @njit(cache=True, inline="always")
 def _pass(w, lanes, src, dst, pe, constants):
-    """One sub-step of every lane: state set `src` in, set `dst` out; the count of lanes left open.
+    """One sub-step of every lane: state set `src` in, set `dst` out; the lanes left open, as bits.
 
     Each lane takes the first iterate of `_newton` (the root unless the lane
     changes branch), so the loop has no branch and vectorises. A lane whose
-    first iterate is not accepted is marked open and redone by
+    first iterate is not accepted is marked open (bit j of the result; a
+    chunk holds at most 64 lanes) and redone by
     `_more_iterations` from the `src` set, which no store here touches, so every store is
     unconditional (a select between the new and the old value stored in
     place is compiled as a masked store, several times slower).
@@ -284,13 +288,12 @@ def _pass(w, lanes, src, dst, pe, constants):
         w[dst + _F, j] = force
         w[dst + _BR, j] = branch
         w[dst + _PEAK, j] = _larger(p_0, abs(u1))  # read at every sub-step
-        w[_OPEN, j] = 0.0 if ok else 1.0
-        open_lanes += 0 if ok else 1
+        open_lanes |= (0 if ok else 1) << j
     return open_lanes
 
 
 @njit(cache=True)
-def _more_iterations(w, lanes, src, dst, pe, constants, max_iter):
+def _more_iterations(w, open_lanes, src, dst, pe, constants, max_iter):
     """Lanes whose first Newton iterate was not accepted: the step again by `_newton`, alone.
 
     Measured: computing the second iterate in `_pass` for every lane as well
@@ -299,9 +302,9 @@ def _more_iterations(w, lanes, src, dst, pe, constants, max_iter):
     spills in the vector loop).
     """
     a_coef, b1, b2, g_coef, g1, g2 = constants
-    for j in range(lanes):
-        if w[_OPEN, j] == 0.0:
-            continue  # done by `_pass`
+    while open_lanes != 0:
+        j = trailing_zeros(open_lanes)
+        open_lanes &= open_lanes - 1  # that lane done
         u0 = w[src + _U, j]
         const = (a_coef, b1, b2, g_coef, g1, g2, w[_M_EFF, j], w[_INV_EL, j], w[_INV_PL, j])
         ok, d, v1, a1, f1, br1, its, res = _newton(
@@ -352,8 +355,9 @@ def _chunk(load, dt, beta, gamma, hardening, k, c, fy, tol, substeps, starts, fi
         for sub in range(s):
             pe = p0 + dp * (sub + 1)
             src, dst = (_SET_B, _SET_A) if in_b else (_SET_A, _SET_B)
-            if _pass(w, lanes, src, dst, pe, constants) > 0:
-                _more_iterations(w, lanes, src, dst, pe, constants, max_iter)
+            open_lanes = _pass(w, lanes, src, dst, pe, constants)
+            if open_lanes != 0:
+                _more_iterations(w, open_lanes, src, dst, pe, constants, max_iter)
             in_b = not in_b
     now = _SET_B if in_b else _SET_A
     for j in range(m):
