@@ -40,8 +40,7 @@ fast-math, so the same operations give the same bits in all three.
 from __future__ import annotations
 
 import numpy as np
-
-from numba.cpython.unsafe.numbers import trailing_zeros
+from numba.cpython.unsafe.numbers import trailing_zeros  # imports no array-math registry (see _jit)
 
 from ._jit import njit
 from ._newmark import newmark_constants
@@ -303,7 +302,7 @@ def _more_iterations(w, open_lanes, src, dst, pe, constants, max_iter):
     """
     a_coef, b1, b2, g_coef, g1, g2 = constants
     while open_lanes != 0:
-        j = trailing_zeros(open_lanes)
+        j = int(trailing_zeros(open_lanes))  # type: ignore[call-arg]  # a numba intrinsic
         open_lanes &= open_lanes - 1  # that lane done
         u0 = w[src + _U, j]
         const = (a_coef, b1, b2, g_coef, g1, g2, w[_M_EFF, j], w[_INV_EL, j], w[_INV_PL, j])
