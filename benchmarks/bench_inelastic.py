@@ -9,8 +9,9 @@ Prints
 - the elastic spectrum of the same periods, for scale;
 - on one thread (numba.set_num_threads(1)), the 0.05-5 s spectrum at
   max_step_ratio 0.1 and at the yielding default
-  (DEFAULT_YIELDING_STEP_RATIO), each beside the former strength scan (64
-  candidates per grid pass) in the same run, with the ratio.
+  (DEFAULT_YIELDING_STEP_RATIO), each beside every run started from rest
+  (no elastic lead-in) and the former strength scan (64 candidates per grid
+  pass) in the same run, with the ratios.
 
 Targets (issue 3): <= 10 ns per yielding oscillator-step inside the
 ductility spectrum; the spectrum in under 1 s on the 2-core machine.
@@ -130,13 +131,22 @@ def main() -> None:
                 f"\none thread, ductility_spectrum 100 periods 0.05-5 s, ductilities {ductilities}, "
                 f"max_step_ratio {ratio:g}:"
             )
-            scans = {"current": _ductility_search._GRID_CANDIDATES, "former": 64}
+            scans = {
+                "current": (_ductility_search._GRID_CANDIDATES, True),
+                "from rest": (_ductility_search._GRID_CANDIDATES, False),
+                "former": (64, True),
+            }
             figures = _one_thread_spectra(record, periods, ductilities, ratio, scans)
             for label, (wall, ns, runs) in figures.items():
                 print(
-                    f"  {label:8s} scan: wall {wall:.3f} s, {ns:.2f} ns per yielding oscillator-step, "
+                    f"  {label:9s} scan: wall {wall:.3f} s, {ns:.2f} ns per yielding oscillator-step, "
                     f"{runs / 1e6:.1f} million oscillator-steps"
                 )
+            print(
+                f"  ratio current / from rest (no elastic lead-in): wall "
+                f"{figures['current'][0] / figures['from rest'][0]:.2f}, "
+                f"oscillator-steps {figures['current'][2] / figures['from rest'][2]:.2f}"
+            )
             print(
                 f"  ratio current / former: wall {figures['current'][0] / figures['former'][0]:.2f}, "
                 f"oscillator-steps {figures['current'][2] / figures['former'][2]:.2f}"
@@ -149,15 +159,15 @@ def main() -> None:
 def _one_thread_spectra(record, periods, ductilities, ratio, scans):
     """{label: (best wall [s], ns per yielding oscillator-step of that run, oscillator-steps)}.
 
-    The scans (grid candidates per pass) alternate within each repeat, so a
-    swing of the shared machine hits both alike.
+    The scans (grid candidates per pass, elastic lead-in on or off) alternate
+    within each repeat, so a swing of the shared machine hits all alike.
     """
-    kept = _ductility_search._GRID_CANDIDATES
+    kept = _ductility_search._GRID_CANDIDATES, _ductility_search.LEAD_IN
     best = {label: (float("inf"), 0.0, 0) for label in scans}
     try:
         for repeat in range(REPEATS + 1):  # the first round compiles or loads the cache
-            for label, candidates in scans.items():
-                _ductility_search._GRID_CANDIDATES = candidates
+            for label, (candidates, lead_in) in scans.items():
+                _ductility_search._GRID_CANDIDATES, _ductility_search.LEAD_IN = candidates, lead_in
                 stats: dict = {}
                 began = time.perf_counter()
                 _inelastic._ductility_spectrum(
@@ -169,7 +179,7 @@ def _one_thread_spectra(record, periods, ductilities, ratio, scans):
                     ns = stats["kernel_seconds"] / stats["oscillator_steps"] * 1e9
                     best[label] = (wall, ns, stats["oscillator_steps"])
     finally:
-        _ductility_search._GRID_CANDIDATES = kept
+        _ductility_search._GRID_CANDIDATES, _ductility_search.LEAD_IN = kept
     return best
 
 

@@ -5,6 +5,17 @@ response reaches μ: a grid stage over ln R from R = 1 upward finds the first
 bracket, then regula falsi with the Illinois modification (Dowell & Jarratt
 1971) refines every bracket at once. Ductility of many (period, strength)
 lanes comes from one compiled kernel call per pass.
+
+Elastic lead-in: until an oscillator first leaves its elastic range its
+history is the elastic one, whatever its strength. One elastic run per
+period (``_kernels_inelastic.elastic_trace``, the operations of the yielding
+kernel's elastic branch) keeps its state every few record steps and, per
+block of steps, how far the trial force came to the bounding lines and the
+largest first residual; each run then starts at the last checkpoint before
+the first block where its strength could yield or need a second Newton
+iterate (with a 1e-12 relative margin for the rounding of the bounding
+lines). The peaks are bit for bit those of runs from rest
+(tests/test_ductility_search.py).
 """
 
 from __future__ import annotations
@@ -16,6 +27,8 @@ import numpy as np
 
 from . import _kernels_inelastic as _kernels
 from . import _notices
+from ._jit import PART_THREADS, get_num_threads
+from ._kernels import SERIAL_WORK as _SERIAL_WORK
 from ._kernels import chunk_starts
 from .inelastic_results import ConvergenceError, DuctilityTargetWarning
 
@@ -48,39 +61,121 @@ _SEARCH_PASSES = 60
 _LARGEST_REDUCTION = 1e4
 
 
-class Solver:
-    """Ductility of many (period, strength) oscillators of one record and settings."""
+#: Start each run from the elastic run's state at the last checkpoint before
+#: the oscillator can first yield (bit for bit the same peaks: see
+#: `_kernels_inelastic.elastic_trace`); False runs every oscillator from rest.
+LEAD_IN = True
+#: Fewest record steps between checkpoints of the elastic run ...
+_LEAD_IN_STRIDE = 8
+#: ... and the most checkpoints per period (memory: 5 floats each).
+_LEAD_IN_BLOCKS = 512
 
-    def __init__(self, record, method, alpha, damping, relative_tolerance, max_iterations, stats):
+
+class Solver:
+    """Ductility of many (period, strength) oscillators of one record and settings.
+
+    The periods (all > 0) and their sub-step counts are fixed at
+    construction (the elastic lead-in of each is run once, on first use);
+    `ductility` takes lanes of those periods.
+    """
+
+    def __init__(self, record, method, alpha, damping, relative_tolerance, max_iterations, stats, periods, substeps):
         self.record, self.method, self.alpha, self.damping = record, method, alpha, damping
         self.relative_tolerance, self.max_iterations, self.stats = relative_tolerance, max_iterations, stats
         self.load = -record.accel
+        self.periods, self.substeps = periods, substeps
+        omega = 2.0 * np.pi / periods
+        self.k, self.c = omega * omega, 2.0 * damping * omega
+        self._trace = None  # (checkpoints, reach, residual), made on first use
+        self._by_period = np.argsort(periods, kind="stable")
 
     def ductility(self, periods, fy, substeps):
-        """μ = max|u|·k/fy for each lane (arrays of equal length)."""
-        order = np.argsort(substeps, kind="stable")
-        periods, fy, substeps = periods[order], fy[order], substeps[order]
-        omega = 2.0 * np.pi / periods
-        k, c = omega * omega, 2.0 * self.damping * omega
+        """μ = max|u|·k/fy for each lane (arrays of equal length; periods and sub-steps among the solver's)."""
+        n_steps = self.record.n - 1
+        sorted_periods = self.periods[self._by_period]
+        place = np.minimum(np.searchsorted(sorted_periods, periods), sorted_periods.size - 1)
+        columns = self._by_period[place]
+        if not (np.array_equal(self.periods[columns], periods) and np.array_equal(self.substeps[columns], substeps)):
+            raise ValueError("ductility lanes must use the periods and sub-steps the solver was made with")
+        k, c, substeps = self.k[columns], self.c[columns], self.substeps[columns]
         accepted = self.relative_tolerance * (fy + self.record.pga)
+        block = self._safe_blocks(columns, fy, accepted)
+        order = np.lexsort((block, substeps))
+        columns, fy, accepted, block = columns[order], fy[order], accepted[order], block[order]
+        k, c, substeps = k[order], c[order], substeps[order]
         starts = chunk_starts(substeps, _kernels.CHUNK)
-        peak, failed = np.empty(periods.size), np.empty(periods.size)
+        chunk_block = block[starts[:-1]]  # the fewest safe blocks of the chunk (sorted ascending)
+        first = np.minimum(chunk_block * self._stride(), n_steps)
+        checkpoints = self._lead_in()[0]
+        lane_block = np.repeat(chunk_block, np.diff(starts))
+        init = np.ascontiguousarray(checkpoints[:, columns, lane_block])
+        peak, failed = np.empty(columns.size), np.zeros(columns.size)
+        work = (n_steps - first) * substeps[starts[:-1]] * np.diff(starts)
+        parts = 1 if work.sum() < _SERIAL_WORK else get_num_threads()
+        owner = _balance(work, parts)
         began = time.perf_counter()
-        _kernels.peaks(
-            self.load, self.record.dt, self.method.beta, self.method.gamma, self.alpha, k, c, fy,
-            accepted, substeps, starts, self.max_iterations, peak, failed,
+        PART_THREADS.run(
+            _kernels.peaks,
+            (self.load, self.record.dt, self.method.beta, self.method.gamma, self.alpha, k, c, fy, accepted,
+             substeps, starts, first, init, self.max_iterations, peak, failed, owner),
+            int(owner.max()) + 1,
         )  # fmt: skip
         if self.stats is not None:
             self.stats["kernel_seconds"] = self.stats.get("kernel_seconds", 0.0) + time.perf_counter() - began
-            steps = int(np.sum(substeps)) * (self.record.n - 1)
-            self.stats["oscillator_steps"] = self.stats.get("oscillator_steps", 0) + steps
-        for lane in np.flatnonzero(failed):  # rare: repeat with step splitting
+            self.stats["oscillator_steps"] = self.stats.get("oscillator_steps", 0) + int(work.sum())
+        # rare: repeat with step splitting, in the order of lanes sorted by sub-steps alone (the
+        # order the kernel ran them before the lead-in), so the first failure reported is the same
+        place = np.empty(columns.size, dtype=np.int64)
+        place[order] = np.arange(columns.size)
+        by_substeps = place[np.argsort(self.substeps[columns[place]], kind="stable")]
+        for lane in by_substeps[failed[by_substeps] != 0.0]:
             peak[lane] = self._robust_peak(
-                periods[lane], k[lane], c[lane], fy[lane], substeps[lane], accepted[lane]
+                self.periods[columns[lane]], k[lane], c[lane], fy[lane], substeps[lane], accepted[lane]
             )
-        mu = np.empty(periods.size)
+        mu = np.empty(columns.size)
         mu[order] = peak * k / fy
         return mu
+
+    def _stride(self):
+        """Record steps per block of the elastic lead-in: at most about `_LEAD_IN_BLOCKS` blocks."""
+        return max(_LEAD_IN_STRIDE, -(-(self.record.n - 1) // _LEAD_IN_BLOCKS))
+
+    def _lead_in(self):
+        """Checkpoints and cumulative reach and residual of the elastic run of every period."""
+        if self._trace is None:
+            began = time.perf_counter()
+            n_steps, stride = self.record.n - 1, self._stride()
+            n_blocks = -(-n_steps // stride)
+            order = np.argsort(self.substeps, kind="stable")
+            n_p = self.periods.size
+            checkpoints = np.empty((_kernels.STATE_ROWS, n_p, n_blocks + 1))
+            reach, residual = np.empty((n_p, n_blocks)), np.empty((n_p, n_blocks))
+            sorted_checkpoints = np.empty_like(checkpoints)
+            sorted_reach, sorted_residual = np.empty_like(reach), np.empty_like(residual)
+            _kernels.elastic_trace(
+                self.load, self.record.dt, self.method.beta, self.method.gamma, self.alpha, self.k[order],
+                self.c[order], self.substeps[order], chunk_starts(self.substeps[order], _kernels.CHUNK), stride,
+                sorted_checkpoints, sorted_reach, sorted_residual,
+            )  # fmt: skip
+            checkpoints[:, order] = sorted_checkpoints
+            reach[order], residual[order] = sorted_reach, sorted_residual
+            # block b is safe for fy if (1 - α)·fy > (1 + 1e-12)·reach there and accepted >= residual
+            reach = np.maximum.accumulate(reach, axis=1) * (1.0 + 1e-12)
+            residual = np.maximum.accumulate(residual, axis=1)
+            self._trace = (checkpoints, reach, residual)
+            if self.stats is not None:
+                self.stats["trace_seconds"] = self.stats.get("trace_seconds", 0.0) + time.perf_counter() - began
+        return self._trace
+
+    def _safe_blocks(self, columns, fy, accepted):
+        """Leading blocks of each lane's record in which it stays on the elastic run (0 without lead-in)."""
+        if not LEAD_IN:
+            return np.zeros(columns.size, dtype=np.int64)
+        _, reach, residual = self._lead_in()
+        fyr = (1.0 - self.alpha) * fy
+        blocks = np.empty(columns.size, dtype=np.int64)
+        _kernels.safe_blocks(reach, residual, columns, fyr, accepted, blocks)
+        return blocks
 
     def _robust_peak(self, period, k, c, fy, substeps, accepted):
         n = self.record.n
@@ -92,6 +187,19 @@ class Solver:
         )  # fmt: skip
         raise_if_failed(info, period, fy, accepted)
         return float(np.max(np.abs(u)))
+
+
+def _balance(work, parts):
+    """Owner thread of each chunk: longest first, each to the least loaded thread (Graham 1969)."""
+    owner = np.zeros(work.size, dtype=np.int64)
+    parts = max(1, min(parts, work.size))
+    if parts > 1:
+        load = np.zeros(parts)
+        for chunk in np.argsort(-work, kind="mergesort"):
+            part = int(np.argmin(load))
+            owner[chunk] = part
+            load[part] += work[chunk]
+    return owner
 
 
 def search(solver, periods, elastic, substeps, targets):

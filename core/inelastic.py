@@ -383,7 +383,10 @@ def _ductility_spectrum(
     moving = period_values > 0.0
     achieved[:, ~moving] = np.nan
     search = targets > 1.0
-    solver = _Solver(record, resolved, alpha, damping, relative_tolerance, iterations_allowed, stats)
+    solver = _Solver(
+        record, resolved, alpha, damping, relative_tolerance, iterations_allowed, stats,
+        period_values[moving], substeps[moving],
+    )  # fmt: skip
     if moving.any() and search.any():
         lanes = (period_values[moving], elastic[moving], substeps[moving])
         found_r, found_mu = _search(solver, *lanes, targets[search])
