@@ -22,7 +22,8 @@ arithmetic without the linearity shortcut.
    (``_jit.PART_THREADS.run_each``); the former route ran the same chunks in a
    numba ``prange`` loop under ``parallel_chunksize(1)``, re-created here
    around the same chunk kernel (compiled in this run, not cached).
-   Alternated rounds, best of each; the results must be bit for bit equal.
+   Alternated rounds with a pause before each call, best of each; the results
+   must be bit for bit equal.
 """
 
 from __future__ import annotations
@@ -76,6 +77,11 @@ def _former(*args) -> None:
         _prange_peaks(*args)
 
 
+#: Pause before each alternated call [s]: numba's OpenMP threads spin for a while after a prange
+#: loop and would slow whichever route runs next.
+_SETTLE = 0.3
+
+
 def _kernel_arguments(record_x: Record, record_y: Record) -> tuple:
     """A small set of arguments of the kernel's types, to compile the prange route before timing it."""
     n = 1  # one oscillator: a chunk holds at most CHUNK
@@ -96,6 +102,7 @@ def threads_against_prange(record_x: Record, record_y: Record, periods) -> tuple
         for _ in range(REPEATS):
             for name, route in (("threads", shipped), ("prange", _former)):
                 _kernels_rotd.rotd_peaks = route
+                time.sleep(_SETTLE)
                 began = time.perf_counter()
                 results[name] = rotd_spectrum(record_x, record_y, periods)
                 best[name] = min(best[name], time.perf_counter() - began)

@@ -41,7 +41,7 @@ import math
 import numpy as np
 
 from ._jit import PART_THREADS, get_num_threads, njit
-from ._kernels import CHUNK, SERIAL_WORK, _advance
+from ._kernels import CHUNK, _advance
 
 #: Fixed directions of the inner polygon, spread over [0°, 180°): eight gives
 #: a polygon within 1 - cos(11.25°) ≈ 2 % of a round orbit's hull.
@@ -49,6 +49,10 @@ N_DIRECTIONS = 8
 #: Columns of `extremes`: max |u_x|, max |u_y|, max radius, then u_x and u_y at it.
 N_EXTREMES = 5
 _FIRST_BUFFER = 1024
+#: Oscillator-sub-steps below which `rotd_peaks` runs every chunk on the calling thread: about
+#: 1 ms of work at the 10-15 ns an oscillator-sub-step costs here (bench_rotd.py), the same time
+#: as ``_kernels.SERIAL_WORK`` of the linear spectrum, whose steps cost 40x less.
+SERIAL_WORK = 100_000
 
 
 @njit(cache=True)
@@ -261,8 +265,8 @@ def rotd_peaks(load_x, load_y, coef, substeps, starts, cosines, sines, peaks, ex
     (``_jit.PART_THREADS.run_each``), which take them one at a time, the
     chunks with the most sub-steps first: the hull filter's work differs
     from chunk to chunk, so no share fixed in advance balances it. Below
-    ``_kernels.SERIAL_WORK`` oscillator-sub-steps every chunk runs on the
-    calling thread. After each sub-step a second loop sends the few points
+    `SERIAL_WORK` oscillator-sub-steps every chunk runs on the
+    calling thread (waking a thread costs more than that). After each sub-step a second loop sends the few points
     outside their oscillator's inscribed circle to the hull filter described
     in the module docstring.
     """

@@ -223,7 +223,7 @@ def test_threaded_chunks_match_one_thread_and_every_projection():
     import numba
 
     x, y = _pair(8, n=6000)
-    periods = np.linspace(0.2, 4.0, 150)  # 3 chunks of 64, 64 and 22; 6e5 x 150 oscillator-steps: the threaded path
+    periods = np.linspace(0.2, 4.0, 150)  # 5 chunks of 32 or fewer; 6,000 x 150 oscillator-steps: above SERIAL_WORK
     threads = numba.get_num_threads()
     numba.set_num_threads(1)
     try:
