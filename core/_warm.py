@@ -60,7 +60,8 @@ def warm_up(only: Iterable[str] | None = None, processes: int = 1) -> dict[str, 
         need (the elastic spectrum's) and then loads it from the cache. If
         the second process cannot start or fails, this process makes its
         calls instead. The kernels of the second process's calls are then on
-        disk, not loaded in this process.
+        disk, not loaded in this process. No second process starts on a
+        single CPU, or when numba's cache already holds those kernels.
 
     Core's warnings during the calls are collected and dropped
     (`collect_warnings`); no process-wide warning filter is changed.
@@ -91,8 +92,8 @@ def warm_up(only: Iterable[str] | None = None, processes: int = 1) -> dict[str, 
     calls = _calls(only)
     start = time.perf_counter()
     second = [label for label in calls if _name(label) in _SECOND] if processes == 2 else []
-    if second and _indexed({_SECOND_MODULES[_name(label)] for label in second}):
-        second = []  # a warm cache loads in milliseconds: starting an interpreter would cost more
+    if second and (_usable_cpus() < 2 or _indexed({_SECOND_MODULES[_name(label)] for label in second})):
+        second = []  # one CPU, or a warm cache (it loads in milliseconds): an interpreter would cost more
     child = _start_second(second) if second else None
     if child is None:
         return _run_calls(calls, start)
@@ -170,6 +171,14 @@ def _run_calls(calls: dict[str, Callable[[], object]], start: float) -> dict[str
             timings[label] = time.perf_counter() - began
     timings["total"] = time.perf_counter() - start
     return timings
+
+
+def _usable_cpus() -> int:
+    """CPUs this process may run on (its affinity where the system reports one)."""
+    try:
+        return len(os.sched_getaffinity(0))
+    except AttributeError:  # not on every system
+        return os.cpu_count() or 1
 
 
 def _indexed(modules: set[str]) -> bool:

@@ -321,6 +321,15 @@ def test_warm_up_makes_the_second_process_calls_itself_when_that_process_fails(m
         _warm.warm_up(processes=3)
 
 
+def test_warm_up_starts_no_second_process_on_one_cpu(monkeypatch):
+    """warm_up(processes=2) on a single CPU makes every call in this process (a second one would only compete)."""
+    from groundstep.core import _warm
+
+    monkeypatch.setattr(_warm, "_indexed", lambda modules: False)  # as on a cold cache
+    monkeypatch.setattr(_warm, "_usable_cpus", lambda: 1)
+    assert list(_warm.warm_up(only=["rotd_spectrum"], processes=2)) == ["rotd_spectrum", "total"]
+
+
 def test_templates_command_writes_templates(tmp_path, capsys):
     """templates DIR writes the calculation-package templates (module of the worksheet-functions work)."""
     importlib.import_module("groundstep.addin.package.template")
