@@ -54,24 +54,67 @@ class _PartThreads:
         self._pid = -1
         self._lock = threading.Lock()
 
+    def _pool_for(self, workers: int) -> Any:
+        """The pool, made (again) when missing, inherited through a fork, or smaller than `workers`."""
+        with self._lock:
+            if self._pool is None or self._pid != os.getpid() or self._workers < workers:
+                from concurrent.futures import ThreadPoolExecutor
+
+                if self._pool is not None and self._pid == os.getpid():  # too small: let its threads end
+                    self._pool.shutdown(wait=False)
+                self._pool = ThreadPoolExecutor(max_workers=workers, thread_name_prefix="groundstep-kernel")
+                self._workers, self._pid = workers, os.getpid()
+            return self._pool
+
     def run(self, kernel: Callable[..., None], args: tuple[Any, ...], parts: int) -> None:
         """``kernel(*args, part)`` for part 0 .. parts-1; part 0 on this thread; re-raises a part's error."""
         if parts <= 1:
             kernel(*args, 0)
             return
-        with self._lock:
-            if self._pool is None or self._pid != os.getpid() or self._workers < parts - 1:
-                from concurrent.futures import ThreadPoolExecutor
-
-                if self._pool is not None and self._pid == os.getpid():  # too small: let its threads end
-                    self._pool.shutdown(wait=False)
-                self._pool = ThreadPoolExecutor(max_workers=parts - 1, thread_name_prefix="groundstep-kernel")
-                self._workers, self._pid = parts - 1, os.getpid()
-            pool = self._pool
+        pool = self._pool_for(parts - 1)
         others = [pool.submit(kernel, *args, part) for part in range(1, parts)]
         kernel(*args, 0)
         for other in others:
             other.result()
+
+    def run_each(self, kernel: Callable[..., None], args: tuple[Any, ...], count: int, threads: int) -> None:
+        """``kernel(*args, index)`` for index 0 .. count-1, taken one at a time, in order, by `threads` threads.
+
+        This thread is one of them. For work whose cost per index is not
+        known in advance (a fixed share per thread, as `run` gives, can leave
+        one thread with the heavy items): each thread takes the next index
+        when it finishes one. After an error no further index is handed out;
+        the first error is raised once every thread has stopped.
+        """
+        threads = max(1, min(threads, count))
+        if threads == 1:
+            for index in range(count):
+                kernel(*args, index)
+            return
+        pool = self._pool_for(threads - 1)
+        indices = iter(range(count))
+        lock = threading.Lock()
+        failed: list[BaseException] = []
+
+        def take() -> None:
+            while True:
+                with lock:
+                    index = None if failed else next(indices, None)
+                if index is None:
+                    return
+                try:
+                    kernel(*args, index)
+                except BaseException as error:
+                    with lock:
+                        failed.append(error)
+                    return
+
+        others = [pool.submit(take) for _ in range(threads - 1)]
+        take()
+        for other in others:
+            other.result()
+        if failed:
+            raise failed[0]
 
 
 #: The one pool of kernel threads of this process.

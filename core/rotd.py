@@ -10,7 +10,6 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-import numba
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
@@ -223,9 +222,8 @@ def rotd_spectrum(
         used = np.ascontiguousarray(substeps[index][order])
         found = np.empty((index.size, angles.size))
         found_extremes = np.empty((index.size, _kernels_rotd.N_EXTREMES))
-        with numba.parallel_chunksize(1):  # threads take chunks one at a time: their work differs
-            _kernels_rotd.rotd_peaks(-record_x.accel, -record_y.accel, np.ascontiguousarray(coef[:, order]), used,
-                                     _kernels.chunk_starts(used, _CHUNK), cosines, sines, found, found_extremes)
+        _kernels_rotd.rotd_peaks(-record_x.accel, -record_y.accel, np.ascontiguousarray(coef[:, order]), used,
+                                 _kernels.chunk_starts(used, _CHUNK), cosines, sines, found, found_extremes)
         rows = index[order]
         omega2 = (2.0 * np.pi / period_values[rows]) ** 2  # PSA = ω²·SD
         peaks[rows] = found * omega2[:, None]

@@ -274,6 +274,62 @@ def test_warm_reports_first_call_time(capsys):
     assert "first calls took" in out and "elastic_spectrum" in out
 
 
+#: A fresh interpreter that warms every kernel and prints numba's cache counts per kernel (hits, misses).
+_CACHE_PROBE = """
+import json, sys
+from numba.core.dispatcher import Dispatcher
+from groundstep.core import warm_up
+warm_up()
+kernels = {}
+for module in list(sys.modules.values()):
+    if getattr(module, "__name__", "").startswith("groundstep."):
+        for kernel in vars(module).values():
+            if isinstance(kernel, Dispatcher):
+                kernels[kernel.py_func.__module__ + "." + kernel.__name__] = kernel
+print(json.dumps({name: [sum(k.stats.cache_hits.values()), sum(k.stats.cache_misses.values())]
+                  for name, k in kernels.items()}))
+"""
+
+
+def test_two_process_warm_leaves_nothing_to_compile(tmp_path):
+    """warm on an empty numba cache (two processes) stores every kernel: a fresh process's warm-up compiles none."""
+    env = dict(os.environ, NUMBA_CACHE_DIR=str(tmp_path / "numba-cache"))
+    warm = subprocess.run([sys.executable, "-m", "groundstep.addin", "warm"], capture_output=True, text=True,
+                          env=env, timeout=900)  # fmt: skip
+    assert warm.returncode == 0, warm.stderr
+    assert "rotd_spectrum (second process)" in warm.stdout, warm.stdout
+    assert "ductility_spectrum (second process)" in warm.stdout, warm.stdout
+    probe = subprocess.run([sys.executable, "-c", _CACHE_PROBE], capture_output=True, text=True, env=env, timeout=900)
+    assert probe.returncode == 0, probe.stderr
+    counts = json.loads(probe.stdout.strip().splitlines()[-1])
+    # numba's dispatcher statistics: a miss is a compile, a hit a load from the on-disk cache
+    assert {name: c for name, c in counts.items() if c[1]} == {}
+    loaded = {name.rsplit(".", 1)[0] for name, (hits, _) in counts.items() if hits}
+    assert {"groundstep.core._kernels", "groundstep.core._kernels_rotd", "groundstep.core._kernels_inelastic"} <= loaded
+
+
+def test_warm_up_makes_the_second_process_calls_itself_when_that_process_fails(monkeypatch):
+    """warm_up(processes=2) whose second interpreter exits with an error makes those calls in this process."""
+    from groundstep.core import _warm
+
+    monkeypatch.setattr(_warm, "_indexed", lambda modules: False)  # as on a cold cache: start the second process
+    monkeypatch.setattr(sys, "executable", shutil.which("false") or "/bin/false")  # an interpreter that fails
+    timings = _warm.warm_up(only=["elastic_spectrum", "rotd_spectrum"], processes=2)
+    assert list(timings) == ["elastic_spectrum (Newmark)", "elastic_spectrum (exact)", "elastic_spectrum (threaded)",
+                             "rotd_spectrum", "total"]  # fmt: skip
+    with pytest.raises(ValueError, match="`processes` must be 1 or 2, got 3"):
+        _warm.warm_up(processes=3)
+
+
+def test_warm_up_starts_no_second_process_on_one_cpu(monkeypatch):
+    """warm_up(processes=2) on a single CPU makes every call in this process (a second one would only compete)."""
+    from groundstep.core import _warm
+
+    monkeypatch.setattr(_warm, "_indexed", lambda modules: False)  # as on a cold cache
+    monkeypatch.setattr(_warm, "_usable_cpus", lambda: 1)
+    assert list(_warm.warm_up(only=["rotd_spectrum"], processes=2)) == ["rotd_spectrum", "total"]
+
+
 def test_templates_command_writes_templates(tmp_path, capsys):
     """templates DIR writes the calculation-package templates (module of the worksheet-functions work)."""
     importlib.import_module("groundstep.addin.package.template")

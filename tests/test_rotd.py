@@ -216,3 +216,33 @@ def test_docstring_examples_run():
     """The Examples section of groundstep.core.rotd runs and prints what it shows."""
     failures, attempted = doctest.testmod(rotd_module, optionflags=doctest.NORMALIZE_WHITESPACE)
     assert failures == 0 and attempted > 0
+
+
+def test_threaded_chunks_match_one_thread_and_every_projection():
+    """Chunks taken by two threads give the bits of one thread, and the peaks of projecting every sample."""
+    import numba
+
+    x, y = _pair(8, n=6000)
+    periods = np.linspace(0.2, 4.0, 150)  # 5 chunks of 32 or fewer; 6,000 x 150 oscillator-steps: above SERIAL_WORK
+    threads = numba.get_num_threads()
+    numba.set_num_threads(1)
+    try:
+        alone = rotd_spectrum(x, y, periods)  # one thread: every chunk on the caller
+    finally:
+        numba.set_num_threads(threads)
+    numba.set_num_threads(min(2, numba.config.NUMBA_NUM_THREADS))  # two threads take the chunks
+    try:
+        shared = rotd_spectrum(x, y, periods)
+    finally:
+        numba.set_num_threads(threads)
+    for field in ("peaks_by_angle", "rotd100", "angle_rotd100", "psa_x", "psa_y"):
+        # each chunk is one call of the same kernel on its own rows, whichever thread runs it: bit for bit
+        assert np.array_equal(getattr(alone, field), getattr(shared, field)), field
+    radians = np.deg2rad(shared.angles)
+    for row in (0, 100, 149):  # one oscillator of each chunk; Δt/T <= 0.05: no sub-steps
+        ux = linear_response(x, periods[row]).displacement
+        uy = linear_response(y, periods[row]).displacement
+        projected = np.abs(np.outer(np.cos(radians), ux) + np.outer(np.sin(radians), uy)).max(axis=1)
+        omega2 = (2 * math.pi / periods[row]) ** 2
+        # linearity, as in test_peaks_equal_projection_of_every_sample_on_a_long_record
+        assert_allclose(shared.peaks_by_angle[row], omega2 * projected, rtol=ROUND_OFF)
