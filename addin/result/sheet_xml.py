@@ -190,12 +190,12 @@ class SheetCells:
                     run.append(run[-1] + 1)
             if len(run) < _SHARED_RUN:
                 continue
-            done.update((below, column) for below in run)
+            done.update((member, column) for member in run)
             letter = column_letter(column)
             texts[(row, column)] = (f'{style}><f t="shared" ref="{letter}{row}:{letter}{run[-1]}" si="{index}">'
                                     f"{_escape(text)}</f></c>")  # fmt: skip
-            for below in run[1:]:
-                texts[(below, column)] = f'{style}><f t="shared" si="{index}"/></c>'
+            for member in run[1:]:
+                texts[(member, column)] = f'{style}><f t="shared" si="{index}"/></c>'
             index += 1
         return texts
 
