@@ -277,22 +277,26 @@ def read_input_workbook(
                              "name a range on a worksheet")  # fmt: skip
         return _attempt(file, lambda: book.sheet(sheet_name))
 
-    def cells(sheet_name: str, reference: str) -> Any:
+    def cells(sheet_name: str, reference: str, flat: bool = False) -> Any:
+        """The range's values as row lists (one cell as [[value]], as a spreadsheet passes it: a blank cell is
+        not a missing name); with `flat`, a range of one column as one list (the cells `_cells.numbers` reads
+        the same way, without a list per row)."""
         sheet = sheet_values(sheet_name)
         low_col, low_row, high_col, high_row = _bounds(clip_reference(reference, sheet.max_row, sheet.max_column))
-        values = sheet.block(low_row, low_col, high_row, high_col)
-        return values  # one cell as [[value]], as a spreadsheet passes it (a blank cell is not a missing name)
+        if flat and low_col == high_col and high_row > low_row:
+            return sheet.column(low_col, low_row, high_row)
+        return sheet.block(low_row, low_col, high_row, high_col)
 
     def get(key: str) -> Any:
         found = _destination(book.book, key)
-        return cells(*found) if found is not None else None
+        return cells(*found, flat=key == "record") if found is not None else None
 
     _refuse_samples_below_the_range(book.book, sheet_values)
     source = file.name
     record_values = None
     if record is not None:
         sheet_name, reference = split_reference(record)
-        record_values = cells(sheet_name, reference)
+        record_values = cells(sheet_name, reference, flat=True)
         source = f"{file.name} {sheet_name}!{reference}"
     try:
         rec, settings = settings_from_cells(get, record_values=record_values, dt=dt, unit=unit, source=source, base=base)

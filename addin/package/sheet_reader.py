@@ -83,6 +83,11 @@ class SheetValues:
     max_row: int = 1
     max_column: int = 1
 
+    def column(self, column: int, min_row: int, max_row: int) -> list[Any]:
+        """The values of one column from `min_row` to `max_row`, top to bottom; None where the file has no value."""
+        get = self.values.get
+        return [get((row, column)) for row in range(min_row, max_row + 1)]
+
     def block(self, min_row: int, min_column: int, max_row: int, max_column: int) -> list[list[Any]]:
         """The values of a rectangle as a list of row lists; None where the file has no value."""
         get = self.values.get
@@ -203,11 +208,11 @@ def _scan(text: str, title: str, strings: list[str], dates: frozenset[int], open
         return None  # a DOCTYPE, comment or CDATA, a processing instruction, prefixed elements
     sheet = SheetValues(title)
     values = sheet.values
-    column_of = _column
+    columns = _COLUMNS
     max_row = max_column = count = 0
     for letters, digits, style, kind, plain, inner in _CELL.findall(body):
         count += 1
-        row, column = int(digits), column_of(letters)
+        row, column = int(digits), columns.get(letters) or _column(letters)
         if row > max_row:
             max_row = row
         if column > max_column:
