@@ -161,3 +161,10 @@ def test_a_chart_sheet_named_as_input_is_refused_clearly(tmp_path):
     book.save(path)
     with pytest.raises(InputError, match="'Plot' is a chart sheet, which holds no cells"):
         read_input_workbook(path, record="Plot!A1:A20")
+
+
+def test_a_range_from_row_0_is_refused(tmp_path):
+    """--record Data!A0:A20 names no cells (rows start at 1): refused with the range named, not read from row 1."""
+    path = _book(tmp_path / "in.xlsx", NAMES)
+    with pytest.raises(InputError, match=r"Data!A0:A20 is not a cell or range such as B2:B4001"):
+        read_input_workbook(path, record="Data!A0:A20")
