@@ -89,7 +89,7 @@ class MainCells(SheetCells):
 
 
 class MainWriter(OpenpyxlWriter):
-    """The writer of the previous commit: `MainCells` for every sheet."""
+    """The writer before shared formulas and row references were left off: `MainCells` for every sheet."""
 
     def add_sheet(self, name: str) -> None:
         super().add_sheet(name)
@@ -97,7 +97,7 @@ class MainWriter(OpenpyxlWriter):
 
 
 def fill_former(path: Path, reference: str, settings, out: Path) -> None:
-    """The previous `fill` in process: openpyxl's normal mode to read, `MainWriter` to write."""
+    """The former `fill` in process: openpyxl's normal mode to read, `MainWriter` to write."""
     record = read_former(path, reference)[0]
     report = build_report(record, settings, command="bench", source=path.name)
     writer = MainWriter()
@@ -193,10 +193,10 @@ def main_bench() -> None:
     print(f"    build report   {build:7.3f} s   share {build / whole:5.1%}")
     print(f"    write workbook {write:7.3f} s   share {write / whole:5.1%}")
     print(f"      former writer {former:7.3f} s   (openpyxl cells, same report): former / now {former / write:4.1f}x")
-    print(f"  read + build + write in process {steps:6.3f} s; previous commit's reader and cell XML "
-          f"{steps_before:6.3f} s: previous / now {steps_before / steps:4.2f}x")
-    print(f"  file size        {size / 1e6:7.3f} MB  previous commit's cell XML {main_size / 1e6:5.3f} MB: "
-          f"now / previous {size / main_size:4.2f}")
+    print(f"  read + build + write in process {steps:6.3f} s; former reader and cell XML (main before the scan) "
+          f"{steps_before:6.3f} s: former / now {steps_before / steps:4.2f}x")
+    print(f"  file size        {size / 1e6:7.3f} MB  former cell XML (every formula written out, every row's r) {main_size / 1e6:5.3f} MB: "
+          f"now / former {size / main_size:4.2f}")
     print(f"  file size        {size / 1e6:7.3f} MB  (target {TARGET_BYTES / 1e6} MB: ratio {size / TARGET_BYTES:4.2f}); "
           f"former writer {former_size / 1e6:5.3f} MB")
     for item in folder.iterdir():
