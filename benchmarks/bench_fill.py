@@ -7,7 +7,10 @@ measured in this run; the machine is shared, so compare the ratios printed
 here (time to build the report versus time to write it, both in this run)
 rather than figures from different runs. The writing is also measured
 through the former writer (openpyxl cell objects for every cell, inlined
-below), alternated with the current one on the same report.
+below), alternated with the current one on the same report, and the
+reading through the former reader (openpyxl's normal mode, a cell object
+for every cell of the workbook, inlined below), alternated with the
+current sheet scan on the same file.
 """
 
 from __future__ import annotations
@@ -23,11 +26,12 @@ from openpyxl import Workbook
 
 from groundstep.addin.cli import main
 from groundstep.addin.cli.common import settings_from_options
-from groundstep.addin.package.inputs import read_input_workbook
+from groundstep.addin.package.inputs import clip_reference, read_input_workbook, settings_from_cells, split_reference
 from groundstep.addin.result import layout as lay
 from groundstep.addin.result.content import build_report
 from groundstep.addin.result.offline import OpenpyxlWriter, write_report
-from groundstep.addin.result.render import Formula, render
+from groundstep.addin.result.render import Formula, column_letter, render
+from groundstep.addin.result.sheet_xml import SheetCells
 
 SAMPLES = 40_000
 DT = 0.005  # s
@@ -65,6 +69,57 @@ class FormerWriter(OpenpyxlWriter):
 
     def save(self, target) -> None:
         self.book.save(target)
+
+
+class MainCells(SheetCells):
+    """The cell XML before shared formulas: every formula written out, every row with its ``r`` (inlined for the ratio)."""
+
+    def xml(self):
+        yield "<sheetData>"
+        parts = []
+        for number in sorted(self._rows):
+            cells = sorted(self._rows[number], key=lambda cell: cell[0])
+            if not cells:
+                continue
+            parts.append(f'<row r="{number}">')
+            parts.extend(f'<c r="{column_letter(column)}{number}"{text}' for column, text in cells)
+            parts.append("</row>")
+        parts.append("</sheetData>")
+        yield "".join(parts)
+
+
+class MainWriter(OpenpyxlWriter):
+    """The writer before shared formulas and row references were left off: `MainCells` for every sheet."""
+
+    def add_sheet(self, name: str) -> None:
+        super().add_sheet(name)
+        self.cells[name] = MainCells(name, self._style)
+
+
+def fill_former(path: Path, reference: str, settings, out: Path) -> None:
+    """The former `fill` in process: openpyxl's normal mode to read, `MainWriter` to write."""
+    record = read_former(path, reference)[0]
+    report = build_report(record, settings, command="bench", source=path.name)
+    writer = MainWriter()
+    render(report.layout, report.content, writer)
+    writer.save(out)
+
+
+def fill_now(path: Path, reference: str, settings, out: Path) -> None:
+    """The current `fill` in process, the same steps as `fill_former`."""
+    record = read_input_workbook(path, record=reference, dt=DT, unit="g")[0]
+    write_report(build_report(record, settings, command="bench", source=path.name), out, force=True)
+
+
+def read_former(path: Path, reference: str):
+    """The reader before the sheet scan: openpyxl's normal mode, the record range's cells (inlined for the ratio)."""
+    import openpyxl
+
+    book = openpyxl.load_workbook(io.BytesIO(path.read_bytes()), data_only=True, keep_vba=False)
+    sheet_name, cells = split_reference(reference)
+    sheet = book[sheet_name]
+    values = [[cell.value for cell in row] for row in sheet[clip_reference(cells, sheet.max_row, sheet.max_column)]]
+    return settings_from_cells(lambda key: None, record_values=values, dt=DT, unit="g", source=path.name)
 
 
 def _write_former(report, path: Path) -> None:
@@ -111,7 +166,13 @@ def main_bench() -> None:
     args = _parser().parse_args(argv)
     record, settings, label = read_input_workbook(source, record=reference, dt=DT, unit="g")
     settings = settings_from_options(args, settings)
-    read = best_of(lambda: read_input_workbook(source, record=reference, dt=DT, unit="g"), REPEATS)
+    read = read_before = float("inf")
+    for _ in range(REPEATS):  # alternated: both readers see the same machine load
+        read = min(read, best_of(lambda: read_input_workbook(source, record=reference, dt=DT, unit="g"), 1))
+        read_before = min(read_before, best_of(lambda: read_former(source, reference), 1))
+    former_record = read_former(source, reference)[0]
+    if former_record.accel.tobytes() != record.accel.tobytes():
+        raise RuntimeError("the sheet scan and openpyxl's normal mode read different records")
     report = build_report(record, settings, command="bench", source=label)
     build = best_of(lambda: build_report(record, settings, command="bench", source=label), REPEATS)
     write = former = float("inf")
@@ -119,12 +180,23 @@ def main_bench() -> None:
         write = min(write, best_of(lambda: write_report(report, folder / "w.xlsx", force=True), 1))
         former = min(former, best_of(lambda: _write_former(report, folder / "former.xlsx"), 1))
     former_size = (folder / "former.xlsx").stat().st_size
+    steps = steps_before = float("inf")
+    for _ in range(REPEATS):  # the whole pipeline in process, previous commit against now, alternated
+        steps = min(steps, best_of(lambda: fill_now(source, reference, settings, folder / "now.xlsx"), 1))
+        steps_before = min(steps_before, best_of(lambda: fill_former(source, reference, settings, folder / "main.xlsx"), 1))
+    main_size = (folder / "main.xlsx").stat().st_size
     print(f"groundstep fill: {SAMPLES} samples, 200 periods x 3 dampings (best of {REPEATS})")
     print(f"  whole command    {whole:7.3f} s   (target {TARGET_SECONDS} s: ratio {whole / TARGET_SECONDS:4.2f})")
     print(f"    read input     {read:7.3f} s   share {read / whole:5.1%}")
+    print(f"      former reader {read_before:7.3f} s   (openpyxl normal mode, same file): former / now {read_before / read:4.1f}x; "
+          "same record bits")
     print(f"    build report   {build:7.3f} s   share {build / whole:5.1%}")
     print(f"    write workbook {write:7.3f} s   share {write / whole:5.1%}")
     print(f"      former writer {former:7.3f} s   (openpyxl cells, same report): former / now {former / write:4.1f}x")
+    print(f"  read + build + write in process {steps:6.3f} s; former reader and cell XML (main before the scan) "
+          f"{steps_before:6.3f} s: former / now {steps_before / steps:4.2f}x")
+    print(f"  file size        {size / 1e6:7.3f} MB  former cell XML (every formula written out, every row's r) {main_size / 1e6:5.3f} MB: "
+          f"now / former {size / main_size:4.2f}")
     print(f"  file size        {size / 1e6:7.3f} MB  (target {TARGET_BYTES / 1e6} MB: ratio {size / TARGET_BYTES:4.2f}); "
           f"former writer {former_size / 1e6:5.3f} MB")
     for item in folder.iterdir():

@@ -87,3 +87,47 @@ def test_a_cell_written_twice_is_refused():
     cells.write(4, 2, [["second"]], None, False)
     with pytest.raises(ValueError, match="sheet 'Record' cell B4 is written twice"):
         list(cells.xml())
+
+
+def _sheet_text(path, part="xl/worksheets/sheet1.xml"):
+    with zipfile.ZipFile(path) as package:
+        return package.read(part).decode()
+
+
+def test_a_formula_column_is_shared_and_reads_back_cell_for_cell(tmp_path):
+    """Formulas down a column that differ only in relative rows become one shared formula; openpyxl expands each."""
+    rows = range(5, 205)
+    column = [[Formula(f"=Record!B{r + 100}*$B$2+F{r - 1}-SUM($C$1:C{r})")] for r in rows]
+    path = _write(tmp_path, [("One", 5, 6, column, lay.SCIENTIFIC, False)])
+    text = _sheet_text(path)
+    assert '<c r="F5" s="1"><f t="shared" ref="F5:F204" si="0">Record!B105*$B$2+F4-SUM($C$1:C5)</f></c>' in text
+    assert text.count('<f t="shared" si="0"/>') == 199
+    sheet = openpyxl.load_workbook(path)["One"]  # openpyxl's Translator moves the master formula itself
+    assert [sheet.cell(r, 6).value for r in rows] == [f[0] for f in column]
+
+
+def test_formulas_that_do_not_follow_one_rule_are_written_out(tmp_path):
+    """A changing $-row, quoted text that looks like a cell, a name or a short run: every formula written in full."""
+    blocks = [
+        ("One", 1, 1, [[Formula(f"=A${r}")] for r in range(1, 6)], None, False),  # $ row changes: not a move
+        ("One", 1, 2, [[Formula(f'="B{r}"&B{r + 10}')] for r in range(1, 6)], None, False),  # text moves too
+        ("One", 1, 3, [[Formula(f"=input_dt*C{r + 10}")] for r in range(1, 6)], None, False),  # a defined name
+        ("One", 1, 4, [[Formula(f"=D{r + 10}")] for r in range(1, 3)], None, False),  # two cells: too short
+    ]
+    path = _write(tmp_path, blocks)
+    assert 't="shared"' not in _sheet_text(path)
+    sheet = openpyxl.load_workbook(path)["One"]
+    for _, row, column, values, _, _ in blocks:
+        assert [sheet.cell(row + i, column).value for i in range(len(values))] == [v[0] for v in values]
+
+
+def test_a_row_reference_is_left_off_only_after_the_row_before(tmp_path):
+    """<row> without r follows the row before (ECMA-376 §18.3.1.73); after a gap r is written; cells keep r."""
+    path = _write(tmp_path, [("One", 3, 1, [[1.0], [2.0], [3.0]], None, False), ("One", 9, 1, [[4.0], [5.0]], None, False)])
+    text = _sheet_text(path)
+    assert ('<row r="3"><c r="A3"><v>1.0</v></c></row><row><c r="A4"><v>2.0</v></c></row><row><c r="A5"><v>3.0</v></c>'
+            '</row><row r="9"><c r="A9"><v>4.0</v></c></row><row><c r="A10"><v>5.0</v></c></row>') in text  # fmt: skip
+    sheet = openpyxl.load_workbook(path)["One"]
+    assert [(c.row, c.value) for (c,) in sheet.iter_rows(min_row=1, max_row=10) if c.value is not None] == [
+        (3, 1.0), (4, 2.0), (5, 3.0), (9, 4.0), (10, 5.0)
+    ]
