@@ -152,7 +152,7 @@ def size_of(value: Any, _depth: int = 0) -> int:
     dominate every cached value (records, histories), and small Python
     objects are counted by ``sys.getsizeof``.
     """
-    kind = type(value)
+    kind: type = type(value)
     if kind in _ATOMS:
         return sys.getsizeof(value)
     if kind is np.ndarray:
