@@ -24,17 +24,21 @@ from ._notices import collect_warnings
 
 __all__ = ["warm_up"]
 
-#: Functions the second process of ``warm_up(processes=2)`` warms, in its order.
-_SECOND = ("rotd_spectrum", "ductility_spectrum")
+#: Functions (or single call labels) the second process of ``warm_up(processes=2)`` warms.
+_SECOND = ("rotd_spectrum", "ductility_spectrum", "elastic_spectrum (exact)")
 #: Of those, the ones whose first call also needs a kernel the first process compiles
 #: (``ductility_spectrum`` runs the elastic spectrum's `_kernels.peaks`): the second
 #: process waits for the first one's signal before these, so no kernel is compiled twice.
-_AFTER_SIGNAL = ("ductility_spectrum",)
+_AFTER_SIGNAL = ("ductility_spectrum", "elastic_spectrum (exact)")
 #: Functions the first process warms before it signals the second one (they compile those shared kernels).
 _BEFORE_SIGNAL = ("elastic_spectrum (Newmark)",)
 #: The kernel modules each function of the second process compiles: when every kernel of them
 #: has an index file in numba's cache, the cache is taken as warm and no second process starts.
-_SECOND_MODULES = {"rotd_spectrum": "_kernels_rotd", "ductility_spectrum": "_kernels_inelastic"}
+_SECOND_MODULES = {
+    "rotd_spectrum": "_kernels_rotd",
+    "ductility_spectrum": "_kernels_inelastic",
+    "elastic_spectrum (exact)": "_coefficients",  # the exact maps; the Newmark ones are the first process's
+}
 #: Label suffix of the steps the second process ran.
 SECOND_LABEL = " (second process)"
 #: Longest wait for the second process [s]: far above a cold compile (seconds), so only a hung child meets it.
@@ -54,8 +58,8 @@ def warm_up(only: Iterable[str] | None = None, processes: int = 1) -> dict[str, 
         skips loading its kernel.
     processes : {1, 2}, default 1
         With 2, a second Python interpreter makes the first calls of
-        ``rotd_spectrum`` and ``ductility_spectrum`` (when warmed) while this
-        one makes the others, so a cold cache fills in about the time of the
+        ``rotd_spectrum``, ``ductility_spectrum`` and the exact-method
+        ``elastic_spectrum`` (when warmed) while this one makes the others, so a cold cache fills in about the time of the
         larger half. It waits for this process to compile the kernel both
         need (the elastic spectrum's) and then loads it from the cache. If
         the second process cannot start or fails, this process makes its
@@ -91,8 +95,8 @@ def warm_up(only: Iterable[str] | None = None, processes: int = 1) -> dict[str, 
         raise ValueError(f"`processes` must be 1 or 2, got {processes!r}")
     calls = _calls(only)
     start = time.perf_counter()
-    second = [label for label in calls if _name(label) in _SECOND] if processes == 2 else []
-    if second and (_usable_cpus() < 2 or _indexed({_SECOND_MODULES[_name(label)] for label in second})):
+    second = [label for label in calls if _among(label, _SECOND)] if processes == 2 else []
+    if second and (_usable_cpus() < 2 or _indexed({_SECOND_MODULES.get(label) or _SECOND_MODULES[_name(label)] for label in second})):
         second = []  # one CPU, or a warm cache (it loads in milliseconds): an interpreter would cost more
     child = _start_second(second) if second else None
     if child is None:
@@ -259,11 +263,57 @@ def _second_process(signal: int, labels_text: str) -> None:
     calls = _calls({_name(label) for label in labels})
     timings: dict[str, float] = {}
     start = time.perf_counter()
-    for label in sorted(labels, key=lambda label: _name(label) in _AFTER_SIGNAL):
-        if signal >= 0 and _name(label) in _AFTER_SIGNAL:
+    prepared: dict[str, float] = {}
+    for label in sorted(labels, key=lambda label: _among(label, _AFTER_SIGNAL)):
+        if signal >= 0 and _among(label, _AFTER_SIGNAL):
+            for other in labels:  # compile what needs no shared kernel while the first process works
+                if _name(other) in _PREPARE:
+                    began = time.perf_counter()
+                    with collect_warnings():
+                        _PREPARE[_name(other)]()
+                    prepared[other] = time.perf_counter() - began
             with os.fdopen(signal, "rb") as pipe:
                 pipe.read()  # returns when the first process closes its end
             signal = -1
         timings.update(_run_calls({label: calls[label]}, start))
         del timings["total"]
-    print(json.dumps(timings))  # in call order
+    print(json.dumps({label: seconds + prepared.get(label, 0.0) for label, seconds in timings.items()}))  # in call order
+
+
+def _among(label: str, group: tuple[str, ...]) -> bool:
+    """True when `group` names the call `label` or its public function."""
+    return label in group or _name(label) in group
+
+
+def _yielding_kernels() -> None:
+    """Compile the constant-ductility search's own kernels without an elastic spectrum.
+
+    `ductility_spectrum` first runs `elastic_spectrum` (the first process
+    compiles its kernels), then the yielding search. This runs the search's
+    solver on a tiny record with given strengths, so the yielding spectrum
+    kernel and the elastic lead-in's kernels are compiled while the first
+    process compiles the elastic ones; the real call after the signal then
+    loads everything from the cache. The arguments have the types
+    `ductility_spectrum` passes (float64 arrays, int64 sub-steps, the
+    settings as `_check_settings` returns them for the defaults), so the
+    compiled signatures are the ones it later looks up
+    (tests/test_cli.py checks that nothing is compiled afterwards).
+    """
+    import inspect
+
+    from . import inelastic
+    from ._ductility_search import Solver
+    from .record import Record
+
+    defaults = inspect.signature(inelastic.ductility_spectrum).parameters
+    settings = [defaults[name].default for name in ("damping", "hardening", "method", "max_step_ratio", "tolerance", "max_iterations")]
+    damping, alpha, method, _, tolerance, iterations = inelastic._check_settings(*settings)
+    record = Record(np.sin(np.linspace(0.0, 6.0, 64)), dt=0.02, unit="m/s2")
+    periods = np.array([0.3, 0.6])
+    substeps = np.array([4, 2], dtype=np.int64)  # any counts: only the kernels' argument types matter here
+    solver = Solver(record, method, alpha, damping, tolerance, iterations, None, periods, substeps)
+    solver.ductility(periods, np.array([0.5, 0.5]), substeps)  # strengths [m/s²] below the record's peak: it yields
+
+
+#: Per function of `_AFTER_SIGNAL`: compiles its kernels that need none of the first process's, before the wait.
+_PREPARE: dict[str, Callable[[], None]] = {"ductility_spectrum": _yielding_kernels}

@@ -308,6 +308,30 @@ def test_two_process_warm_leaves_nothing_to_compile(tmp_path):
     assert {"groundstep.core._kernels", "groundstep.core._kernels_rotd", "groundstep.core._kernels_inelastic"} <= loaded
 
 
+_PREPARED_PROBE = """
+import json, warnings
+import numpy as np
+from groundstep.core import _warm, _kernels_inelastic as kernels, Record, ductility_spectrum, elastic_spectrum
+_warm._yielding_kernels()
+record = Record(np.sin(np.linspace(0.0, 6.0, 64)), dt=0.02, unit="m/s2")
+elastic_spectrum(record, [0.3], [0.05])
+names = ("peaks", "elastic_trace", "safe_blocks")
+before = {name: len(getattr(kernels, name).signatures) for name in names}
+warnings.simplefilter("ignore")
+ductility_spectrum(record, [0.3, 0.6], [1.0, 2.0])
+print(json.dumps([before, {name: len(getattr(kernels, name).signatures) for name in names}]))
+"""
+
+
+def test_second_process_prepares_the_signatures_ductility_spectrum_uses(tmp_path):
+    """The yielding kernels compiled before the wait are the ones ductility_spectrum then calls (no new signature)."""
+    env = dict(os.environ, NUMBA_CACHE_DIR=str(tmp_path / "numba-cache"))
+    probe = subprocess.run([sys.executable, "-c", _PREPARED_PROBE], capture_output=True, text=True, env=env, timeout=900)
+    assert probe.returncode == 0, probe.stderr
+    before, after = json.loads(probe.stdout.strip().splitlines()[-1])
+    assert before == after == {"peaks": 1, "elastic_trace": 1, "safe_blocks": 1}
+
+
 def test_warm_up_makes_the_second_process_calls_itself_when_that_process_fails(monkeypatch):
     """warm_up(processes=2) whose second interpreter exits with an error makes those calls in this process."""
     from groundstep.core import _warm
@@ -315,7 +339,8 @@ def test_warm_up_makes_the_second_process_calls_itself_when_that_process_fails(m
     monkeypatch.setattr(_warm, "_indexed", lambda modules: False)  # as on a cold cache: start the second process
     monkeypatch.setattr(sys, "executable", shutil.which("false") or "/bin/false")  # an interpreter that fails
     timings = _warm.warm_up(only=["elastic_spectrum", "rotd_spectrum"], processes=2)
-    assert list(timings) == ["elastic_spectrum (Newmark)", "elastic_spectrum (exact)", "elastic_spectrum (threaded)",
+    # the second process's calls (the exact maps, RotD) follow this process's own, as when it runs them
+    assert list(timings) == ["elastic_spectrum (Newmark)", "elastic_spectrum (threaded)", "elastic_spectrum (exact)",
                              "rotd_spectrum", "total"]  # fmt: skip
     with pytest.raises(ValueError, match="`processes` must be 1 or 2, got 3"):
         _warm.warm_up(processes=3)
