@@ -13,11 +13,11 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from . import _coefficients, _kernels, _kernels_rotd
+from . import _kernels, _kernels_rotd
 from .checks import check_damping, check_periods, check_positive
 from .defaults import DEFAULT_DAMPING, DEFAULT_STEP_RATIO
-from .linear import _warn_grid_substeps
-from .methods import Method, resolve_method, substep_counts
+from .linear import _step_coefficients, _warn_grid_substeps
+from .methods import resolve_method
 from .record import Record
 
 __all__ = ["DEFAULT_ANGLE_STEP", "RotDSpectrum", "rotd_spectrum"]
@@ -217,7 +217,8 @@ def rotd_spectrum(
     substeps = np.ones(period_values.size, dtype=np.int64)
     if moving.any():
         index = np.flatnonzero(moving)
-        coef, substeps[index] = _step_coefficients(record_x.dt, period_values[index], damping_value, resolved, ratio)
+        coef, substeps[index] = _step_coefficients(record_x.dt, period_values[index], np.full(index.size, damping_value),
+                                                   resolved, ratio)  # fmt: skip
         order = np.argsort(substeps[index], kind="stable")  # chunks of equal sub-step count
         used = np.ascontiguousarray(substeps[index][order])
         found = np.empty((index.size, angles.size))
@@ -324,20 +325,6 @@ def _check_pair(record_x: Record, record_y: Record) -> None:
             f"`record_x` and `record_y` must hold the same number of samples, got {record_x.n} and {record_y.n}; "
             "the two components must be simultaneous: trim both to the same time window first"
         )
-
-
-def _step_coefficients(dt: float, periods: NDArray[np.float64], damping: float, method: Method,
-                       ratio: float | None) -> tuple[NDArray[np.float64], NDArray[np.int64]]:  # fmt: skip
-    """Map coefficients (10, n) of ONE sub-step h = dt/s and the counts s, for periods > 0."""
-    substeps = np.asarray(substep_counts(dt, periods, method, ratio), dtype=np.int64)
-    omega = 2.0 * np.pi / periods
-    zeta = np.full(omega.size, damping)
-    step = dt / substeps
-    if method.is_newmark:
-        coef = _coefficients.newmark(omega, zeta, step, method.beta, method.gamma)
-    else:
-        coef = _coefficients.exact(omega, zeta, step)
-    return np.ascontiguousarray(coef), substeps
 
 
 def _rigid_peaks(accel_x: NDArray[np.float64], accel_y: NDArray[np.float64], cosines: NDArray[np.float64],
