@@ -26,7 +26,7 @@ from __future__ import annotations
 import contextlib
 import contextvars
 import math
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator
 
 import numpy as np
 from numpy.typing import NDArray
@@ -160,15 +160,17 @@ def work_budget(max_work: float) -> Iterator[float]:
         _BUDGET.reset(token)
 
 
-def check_work(cost: float, what: str) -> float:
+def check_work(cost: float, what: str | Callable[[], str]) -> float:
     """Refuse a request whose `cost` [oscillator-sub-steps] exceeds the budget in force.
 
     Parameters
     ----------
     cost : float
         The request's cost, e.g. samples x sum of sub-steps.
-    what : str
-        The request, for the message ("20000 samples x 500 oscillators x 1 sub-step").
+    what : str or callable
+        The request, for the message ("20000 samples x 500 oscillators x 1 sub-step"),
+        or a function returning it, called only when the request is refused (so a
+        call that passes builds no message).
 
     Returns
     -------
@@ -182,8 +184,9 @@ def check_work(cost: float, what: str) -> float:
     """
     budget = current_budget()
     if not math.isfinite(cost) or cost > budget:
+        described = what if isinstance(what, str) else what()
         raise LimitError(
-            f"{what} costs {cost:.3g} oscillator-sub-steps, beyond the work budget of {budget:.3g}",
+            f"{described} costs {cost:.3g} oscillator-sub-steps, beyond the work budget of {budget:.3g}",
             "raise it with `with groundstep.core.budget.work_budget(N):` around the call, "
             "or shorten the record, use fewer periods or a longer time step",
         )

@@ -143,8 +143,7 @@ def linear_response(
     dt = record.dt
     substeps = substep_count(dt, period, resolved, ratio)
     n = record.n
-    if not n * float(substeps) <= _budget.current_budget():
-        _budget.check_work(n * float(substeps), f"a response of {n} samples x {substeps} sub-steps")
+    _budget.check_work(n * float(substeps), lambda: f"a response of {n} samples x {substeps} sub-steps")
     _warn_substeps(period, dt, substeps, resolved, ratio)
     omega = 2.0 * math.pi / period
     # the kernel is handed ü_g itself with the map's load rows negated (see elastic_spectrum)
@@ -229,19 +228,19 @@ def elastic_spectrum(
     ratio = _check_ratio(max_step_ratio)
 
     dt = record.dt
+    limit = step_limit(resolved, ratio)
     counts, order, used, starts, total, largest, split, worst, needed = _kernels.spectrum_plan(
-        period_values, damping_values, dt, step_limit(resolved, ratio), MAX_SUBSTEPS
+        period_values, damping_values, dt, limit, MAX_SUBSTEPS
     )
     if worst >= 0:
-        raise _too_many(dt, float(period_values[worst]), needed, step_limit(resolved, ratio), resolved)
+        raise _too_many(dt, float(period_values[worst]), needed, limit, resolved)
     found = np.empty((3, order.shape[0]))
     if order.shape[0]:
         n = record.n
-        if not n * float(total) <= _budget.current_budget():
-            _budget.check_work(
-                n * float(total),
-                f"a spectrum of {n} samples x {used.size} oscillators x {used.mean():.3g} sub-steps on average",
-            )
+        _budget.check_work(
+            n * float(total),
+            lambda: f"a spectrum of {n} samples x {used.size} oscillators x {used.mean():.3g} sub-steps on average",
+        )
         # The kernels step the load p = -ü_g. Negating the load rows A4..A7 of the map instead and
         # handing them ü_g itself saves a record-length copy and changes no bit: negation is exact
         # and rounding is symmetric about zero, so every product, sum and interpolated load of the
