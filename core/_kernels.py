@@ -76,9 +76,15 @@ def _chunk_starts(substeps, size):
     return starts[:count].copy()
 
 
+#: Relative shortfall allowed before a ratio dt/(limit·T) rounds up to one more sub-step: keeps a
+#: ratio exactly at the limit, computed with round-off, at its count (``methods.substep_count``
+#: applies the same rule to one period on floats).
+SUBSTEP_SLACK = 1e-12
+
+
 @njit(cache=True)
 def substep_counts(dt, periods, limit, most, counts):
-    """Sub-steps s = ceil(dt / (limit·T)·(1 - 1e-12)), at least 1, of each period T > 0 into `counts`.
+    """Sub-steps s = ceil(dt / (limit·T)·(1 - SUBSTEP_SLACK)), at least 1, of each period T > 0 into `counts`.
 
     Periods <= 0 (rigid) take 1. Returns (index, needed): the first period
     that needs the most sub-steps when that is more than `most`, else
@@ -87,7 +93,7 @@ def substep_counts(dt, periods, limit, most, counts):
     worst, worst_needed = -1, 0.0
     for p in range(periods.shape[0]):
         if periods[p] > 0.0:
-            needed = np.ceil(dt / (limit * periods[p]) * (1.0 - 1e-12))
+            needed = np.ceil(dt / (limit * periods[p]) * (1.0 - SUBSTEP_SLACK))
             if needed > most and (worst < 0 or needed > worst_needed):
                 worst, worst_needed = p, needed
             elif worst < 0:

@@ -220,8 +220,8 @@ def substep_count(dt: float, period: float, method: Method, max_step_ratio: floa
         limit = step_limit(method, max_step_ratio)
     if math.isinf(limit) or not period > 0.0:
         return 1
-    # 1e-12 keeps a ratio that is exactly at the limit from rounding up to one more step
-    needed = math.ceil(dt / (limit * period) * (1.0 - 1e-12))
+    # the rule of the compiled grid version, with its slack (a ratio at the limit keeps its count)
+    needed = math.ceil(dt / (limit * period) * (1.0 - _kernels.SUBSTEP_SLACK))
     if needed > MAX_SUBSTEPS:
         raise _too_many(dt, period, float(needed), limit, method)
     return max(needed, 1)
