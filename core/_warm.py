@@ -4,8 +4,9 @@ numba compiles a kernel on its first call (seconds each) and, with
 ``cache=True``, stores the machine code beside the module. ``warm_up`` makes
 those first calls on a tiny record, so the cost is paid once per install
 (``groundstep warm``), not once per workbook. numba compiles on one thread,
-so ``warm_up(processes=2)`` has a second interpreter compile the RotD and
-constant-ductility kernels at the same time (``groundstep warm`` does).
+so ``warm_up(processes=2)`` has a second interpreter compile the RotD,
+constant-ductility and exact-map kernels at the same time (``groundstep
+warm`` does).
 """
 
 from __future__ import annotations
@@ -27,7 +28,7 @@ __all__ = ["warm_up"]
 #: Functions (or single call labels) the second process of ``warm_up(processes=2)`` warms.
 _SECOND = ("rotd_spectrum", "ductility_spectrum", "elastic_spectrum (exact)")
 #: Of those, the ones whose first call also needs a kernel the first process compiles
-#: (``ductility_spectrum`` runs the elastic spectrum's `_kernels.peaks`): the second
+#: (both run the Newmark spectrum's plan, `_kernels.peaks` and values): the second
 #: process waits for the first one's signal before these, so no kernel is compiled twice.
 _AFTER_SIGNAL = ("ductility_spectrum", "elastic_spectrum (exact)")
 #: Functions the first process warms before it signals the second one (they compile those shared kernels).
