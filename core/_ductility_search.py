@@ -29,7 +29,7 @@ from . import _kernels_inelastic as _kernels
 from . import _notices
 from ._jit import PART_THREADS, get_num_threads
 from ._kernels import SERIAL_WORK as _SERIAL_WORK
-from ._kernels import chunk_starts
+from ._kernels import chunk_starts, share
 from .inelastic_results import ConvergenceError, DuctilityTargetWarning
 
 #: Finest split of a step that fails to converge (a power of two).
@@ -112,7 +112,7 @@ class Solver:
         peak, failed = np.empty(columns.size), np.zeros(columns.size)
         work = (n_steps - first) * substeps[starts[:-1]] * np.diff(starts)
         parts = 1 if work.sum() < _SERIAL_WORK else get_num_threads()
-        owner = _balance(work, parts)
+        owner = share(work, parts)
         began = time.perf_counter()
         PART_THREADS.run(
             _kernels.peaks,
@@ -187,19 +187,6 @@ class Solver:
         )  # fmt: skip
         raise_if_failed(info, period, fy, accepted)
         return float(np.max(np.abs(u)))
-
-
-def _balance(work, parts):
-    """Owner thread of each chunk: longest first, each to the least loaded thread (Graham 1969)."""
-    owner = np.zeros(work.size, dtype=np.int64)
-    parts = max(1, min(parts, work.size))
-    if parts > 1:
-        load = np.zeros(parts)
-        for chunk in np.argsort(-work, kind="mergesort"):
-            part = int(np.argmin(load))
-            owner[chunk] = part
-            load[part] += work[chunk]
-    return owner
 
 
 def search(solver, periods, elastic, substeps, targets):

@@ -281,30 +281,40 @@ def _chunk(load, coef, substeps, starts, u0, v0, out, chunk):
 
 
 def balance(substeps, starts, parts):
-    """Share chunks among `parts` threads by work (lanes x sub-steps): the owner of each chunk.
+    """Share chunks among `parts` threads by work (lanes x sub-steps): the owner of each chunk (`share`).
 
-    Longest first, each to the least loaded thread (Graham 1969), so the few
-    heavy chunks of sub-stepped short periods, which sort last, do not all
-    land on one thread as an even split of the chunk range would put them.
-    Plain Python and numpy: a spectrum has tens to hundreds of chunks, and a
-    compiled version cost about 2 s of numba compilation on a cold cache.
+    The few heavy chunks of sub-stepped short periods, which sort last, do
+    not all land on one thread as an even split of the chunk range would
+    put them.
+    """
+    sizes = np.diff(starts)
+    lanes = np.minimum(CHUNK, (sizes + LANES - 1) // LANES * LANES)
+    return share(lanes * substeps[starts[:-1]], parts)
+
+
+def share(work, parts):
+    """The owner (0 .. parts-1) of each item of `work`: longest first, each to the least loaded thread (Graham 1969).
+
+    Ties keep the items' order, and the first least loaded thread is taken.
+    Plain Python and numpy: tens to hundreds of items, and a compiled
+    version cost about 2 s of numba compilation on a cold cache.
 
     References
     ----------
     Graham, R. L. (1969). Bounds on multiprocessing timing anomalies. SIAM
     Journal on Applied Mathematics, 17(2), 416-429.
     """
-    sizes = np.diff(starts)
-    lanes = np.minimum(CHUNK, (sizes + LANES - 1) // LANES * LANES)
-    work = (lanes * substeps[starts[:-1]]).tolist()
-    n_chunks = len(work)
-    owner = np.empty(n_chunks, dtype=np.int64)
-    parts = max(1, min(parts, n_chunks))
+    work = np.asarray(work).tolist()
+    n_items = len(work)
+    owner = np.zeros(n_items, dtype=np.int64)
+    parts = max(1, min(parts, n_items))
+    if parts == 1:
+        return owner
     load = [0] * parts
-    for chunk in sorted(range(n_chunks), key=work.__getitem__, reverse=True):  # stable: ties keep chunk order
+    for item in sorted(range(n_items), key=work.__getitem__, reverse=True):  # stable: ties keep item order
         part = load.index(min(load))  # the first least loaded, as argmin
-        owner[chunk] = part
-        load[part] += work[chunk]
+        owner[item] = part
+        load[part] += work[item]
     return owner
 
 
