@@ -59,13 +59,12 @@ _COLUMNS: dict[str, int] = {}
 
 
 def _column(letters: str) -> int:
-    """1-based index of column `letters` (``A`` -> 1, ``AB`` -> 28)."""
+    """1-based index of column `letters` (``A`` -> 1, ``AB`` -> 28): openpyxl's, kept in `_COLUMNS` for the scan."""
     index = _COLUMNS.get(letters)
     if index is None:
-        index = 0
-        for letter in letters:
-            index = index * 26 + ord(letter) - 64
-        _COLUMNS[letters] = index
+        from openpyxl.utils.cell import column_index_from_string
+
+        index = _COLUMNS[letters] = int(column_index_from_string(letters))
     return index
 
 
