@@ -7,7 +7,7 @@ result workbook while openpyxl writes the rest of the package (styles,
 defined names, column widths, page set-up, charts), so the layout stays the
 one description both writers walk; only the backend of the cells differs.
 
-What is written (all of it read back by openpyxl, Excel and LibreOffice):
+What is written (all of it read back by openpyxl, LibreOffice and Gnumeric in the tests; Excel is not run here):
 
 - a number as ``<v>repr(x)</v>``: the shortest text that reads back as the
   same float64 (exact, and shorter than a fixed 17 digits); integers as
@@ -23,8 +23,9 @@ What is written (all of it read back by openpyxl, Excel and LibreOffice):
   ("sheet_cell_create: assertion 'col >= 0' failed") and lost the
   Verification formulas, found by the Gnumeric recalculation test;
 - the row's ``r`` only where a row does not follow the one before
-  (§18.3.1.73: a row without ``r`` is the next row), which Excel,
-  LibreOffice, Gnumeric and openpyxl all read;
+  (§18.3.1.73: a row without ``r`` is the next row), which LibreOffice,
+  Gnumeric and openpyxl read (tests/test_calc_extension.py,
+  tests/test_sheet_xml.py); Excel could not be run here to check it;
 - a run of formulas down a column that differ only by their relative rows
   (the Verification sheet's replay columns) as one shared formula
   (§18.3.1.40, ``t="shared"``): the first cell holds the text and the
